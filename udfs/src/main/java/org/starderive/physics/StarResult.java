@@ -1,0 +1,82 @@
+package org.starderive.physics;
+
+import java.util.Arrays;
+
+/**
+ * Everything derived for one star, reused from row to row. A quantity that could not be derived is NaN (NULL in
+ * the catalogue) and {@link #flags} says why. Units are in every name.
+ */
+public final class StarResult {
+    /** How the distance was obtained. */
+    public enum DistanceMethod {
+        NONE(null), INVERSE_PARALLAX("inverse_parallax"), EDSD_MEDIAN("edsd_median"), EDSD_MODE("edsd_mode");
+
+        private final String label;
+
+        DistanceMethod(String label) { this.label = label; }
+
+        /** Value of the {@code dist_method} column (null for NONE). */
+        public String label() { return label; }
+    }
+
+    public long flags;
+    public DistanceMethod distMethod;
+    public double parallaxCorrMas;
+    public double distPc;
+    public double distLoPc;
+    public double distHiPc;
+    public double distModulusMag;
+    public double distModulusErrMag;
+    public double ebvUsed;
+    public double avMag;
+    public final double[] absMag = new double[Band.COUNT];
+    public final double[] absMagErr = new double[Band.COUNT];
+    public LuminosityClass lumClass;
+    public double teffK;
+    public double teffErrK;
+    /** Bit i set: relation i of {@link TeffRelations#all()} contributed to {@link #teffK}. */
+    public long teffRelations;
+    public double teffChi2;
+    public double bcV;
+    public double bcVErr;
+    public double mbolMag;
+    public double mbolErrMag;
+    public double lumLsun;
+    public double lumErrLsun;
+    public double lumW;
+    public double radiusRsun;
+    public double radiusErrRsun;
+    public double massMsun;
+    public double massErrMsun;
+    public double densityKgM3;
+    public double densityErrKgM3;
+    public double densitySun;
+    public double loggCgs;
+    public double loggErrCgs;
+    public double angDiamMas;
+    public double angDiamErrMas;
+    public double angDiamSbrMas;
+
+    public StarResult() { clear(); }
+
+    public StarResult clear() {
+        flags = 0;
+        distMethod = DistanceMethod.NONE;
+        lumClass = null;
+        teffRelations = 0;
+        parallaxCorrMas = distPc = distLoPc = distHiPc = distModulusMag = distModulusErrMag = Double.NaN;
+        ebvUsed = avMag = Double.NaN;
+        Arrays.fill(absMag, Double.NaN);
+        Arrays.fill(absMagErr, Double.NaN);
+        teffK = teffErrK = teffChi2 = bcV = bcVErr = mbolMag = mbolErrMag = Double.NaN;
+        lumLsun = lumErrLsun = lumW = radiusRsun = radiusErrRsun = Double.NaN;
+        massMsun = massErrMsun = densityKgM3 = densityErrKgM3 = densitySun = loggCgs = loggErrCgs = Double.NaN;
+        angDiamMas = angDiamErrMas = angDiamSbrMas = Double.NaN;
+        return this;
+    }
+
+    public boolean has(QualityFlag f) { return f.isSet(flags); }
+
+    /** Comma-separated ids of the relations behind {@link #teffK}; null when none. */
+    public String teffFrom() { return TeffRelations.describe(teffRelations); }
+}
