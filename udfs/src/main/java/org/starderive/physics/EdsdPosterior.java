@@ -12,8 +12,8 @@ package org.starderive.physics;
  * the work array: not thread-safe, use one per thread.
  */
 public final class EdsdPosterior {
-    /** Log-density drop that bounds the integration window (e^-30 ≈ 1e-13 of the peak). */
-    static final double LOG_DROP = 30.0;
+    /** Log-density drop that bounds the integration window (e^-20 ≈ 2e-9 of the peak). */
+    static final double LOG_DROP = 20.0;
     private static final int MAX_STEPS = 200;
 
     private final int intervals;
@@ -27,8 +27,8 @@ public final class EdsdPosterior {
         this.cumulative = new double[intervals + 1];
     }
 
-    /** The default grid (96 intervals): see the accuracy test against brute-force integration. */
-    public static EdsdPosterior standard() { return new EdsdPosterior(96); }
+    /** The default grid (128 intervals): see the accuracy test against brute-force integration. */
+    public static EdsdPosterior standard() { return new EdsdPosterior(128); }
 
     private static double logDensityU(double u, double parallaxMas, double sigmaMas, double lengthKpc) {
         double r = Math.exp(u);

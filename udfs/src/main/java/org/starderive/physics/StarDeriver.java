@@ -47,6 +47,8 @@ public final class StarDeriver {
     private static final double TEFF_SANE_MAX_K = 50000.0;
     private static final double MAG_ERR_MAX = 10.0;
     private static final double PARALLAX_ERR_MAX_MAS = 1e5;
+    /** Below a nano-arcsecond an error is not a measurement (its square underflows the posterior). */
+    private static final double PARALLAX_ERR_MIN_MAS = 1e-6;
     private static final double EBV_MAX = 20.0;
     private static final double DWARF_LOGG_START_ERR = 0.3;
     /** θ in mas of a 1 R⊙ star at 10 pc: 2 R⊙ / 10 pc. */
@@ -329,7 +331,7 @@ public final class StarDeriver {
         }
         double plx = in.parallaxMas;
         double err = in.hasParallaxErr ? in.parallaxErrMas : Double.NaN;
-        if (!Double.isFinite(plx) || !(err > 0 && err <= PARALLAX_ERR_MAX_MAS)) {
+        if (!Double.isFinite(plx) || !(err >= PARALLAX_ERR_MIN_MAS && err <= PARALLAX_ERR_MAX_MAS)) {
             return INPUT_INVALID.mask();
         }
         double p = plx - settings.parallaxZeroPointMas();

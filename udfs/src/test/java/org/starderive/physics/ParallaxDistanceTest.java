@@ -1,0 +1,137 @@
+package org.starderive.physics;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import org.apache.commons.math3.analysis.UnivariateFunction;
+import org.apache.commons.math3.analysis.integration.IterativeLegendreGaussIntegrator;
+import org.apache.commons.math3.analysis.solvers.BrentSolver;
+import org.apache.commons.math3.optim.MaxEval;
+import org.apache.commons.math3.optim.nonlinear.scalar.GoalType;
+import org.apache.commons.math3.optim.univariate.BrentOptimizer;
+import org.apache.commons.math3.optim.univariate.SearchInterval;
+import org.apache.commons.math3.optim.univariate.UnivariateObjectiveFunction;
+import org.apache.commons.math3.optim.univariate.UnivariatePointValuePair;
+import org.junit.jupiter.api.Test;
+
+class ParallaxDistanceTest {
+    private static final double L = 1.35;
+
+    @Test
+    void inverseParallaxAndItsOutOfDomainPolicy() {
+        assertEquals(100.0, ParallaxDistance.inverseParallaxPc(10.0), 1e-12);
+        assertTrue(Double.isNaN(ParallaxDistance.inverseParallaxPc(0.0)), "zero parallax has no inverse distance");
+        assertTrue(Double.isNaN(ParallaxDistance.inverseParallaxPc(-1.0)), "negative parallax has no inverse distance");
+        assertTrue(Double.isNaN(ParallaxDistance.inverseParallaxPc(Double.NaN)));
+    }
+
+    @Test
+    void modesOfHandDerivedCases() {
+        // Bailer-Jones 2015 cubic r^3/L - 2r^2 + (w/s^2) r - 1/s^2 = 0, solved by hand for L = 1.35 kpc:
+        // w = 1 mas, s = 0.1 mas -> 1.013 kpc; s = 0.5 mas -> 1.500 kpc
+        assertEquals(1.013, ParallaxDistance.edsdModeKpc(1.0, 0.1, L), 0.0005);
+        assertEquals(1.500, ParallaxDistance.edsdModeKpc(1.0, 0.5, L), 0.0005);
+    }
+
+    @Test
+    void modeIsTheMaximumFoundByAGeneralOptimiser() {
+        // reference: Commons Math Brent optimiser on the log posterior
+        double[][] cases = {{1, 0.1}, {1, 0.5}, {0.2, 0.1}, {0, 0.3}, {-0.5, 0.5}, {10, 0.05}, {0.05, 1.0}, {300, 0.02}};
+        for (double[] c : cases) {
+            double w = c[0];
+            double s = c[1];
+            double mode = ParallaxDistance.edsdModeKpc(w, s, L);
+            UnivariatePointValuePair best = new BrentOptimizer(1e-12, 1e-14).optimize(new MaxEval(10000),
+                    new UnivariateObjectiveFunction(r -> ParallaxDistance.logPosterior(r, w, s, L)), GoalType.MAXIMIZE,
+                    new SearchInterval(1e-4, 50 * L, Math.max(1e-3, mode)));
+            assertEquals(best.getPoint(), mode, 1e-5 * Math.max(1, mode), "w=" + w + " s=" + s);
+        }
+    }
+
+    /** Reference percentiles: Commons Math Gauss-Legendre integration of the posterior, Brent root for the CDF. */
+    private static double[] referencePercentiles(double w, double s, double[] probs) {
+        double mode = ParallaxDistance.edsdModeKpc(w, s, L);
+        double lpMax = ParallaxDistance.logPosterior(mode, w, s, L);
+        UnivariateFunction density = r -> Math.exp(ParallaxDistance.logPosterior(r, w, s, L) - lpMax);
+        // log-spaced pieces from 1e-5 kpc to 60 L: fine enough for the narrowest case here
+        int pieces = 4000;
+        double lo = Math.log(1e-5);
+        double hi = Math.log(60 * L);
+        double[] edges = new double[pieces + 1];
+        double[] cum = new double[pieces + 1];
+        IterativeLegendreGaussIntegrator integ = new IterativeLegendreGaussIntegrator(16, 1e-12, 1e-14);
+        for (int i = 0; i <= pieces; i++) {
+            edges[i] = Math.exp(lo + (hi - lo) * i / pieces);
+            if (i > 0) {
+                cum[i] = cum[i - 1] + integ.integrate(1_000_000, density, edges[i - 1], edges[i]);
+            }
+        }
+        double total = cum[pieces];
+        double[] out = new double[probs.length];
+        for (int k = 0; k < probs.length; k++) {
+            double target = probs[k] * total;
+            int i = 1;
+            while (cum[i] < target) {
+                i++;
+            }
+            final int piece = i;
+            UnivariateFunction f = r -> cum[piece - 1] + (r == edges[piece - 1] ? 0
+                    : integ.integrate(1_000_000, density, edges[piece - 1], r)) - target;
+            out[k] = new BrentSolver(1e-13).solve(10000, f, edges[piece - 1], edges[piece]);
+        }
+        return out;
+    }
+
+    @Test
+    void percentilesAgreeWithBruteForceIntegration() {
+        double[] probs = {StarDeriver.P16, 0.5, StarDeriver.P84};
+        double[][] cases = {{1, 0.1}, {1, 0.5}, {0.2, 0.1}, {0, 0.3}, {-0.5, 0.5}, {10, 0.05}, {0.05, 1.0}, {2, 0.3}};
+        EdsdPosterior post = EdsdPosterior.standard();
+        double[] mine = new double[3];
+        for (double[] c : cases) {
+            double[] ref = referencePercentiles(c[0], c[1], probs);
+            assertTrue(post.percentilesKpc(c[0], c[1], L, probs, mine));
+            double width = ref[2] - ref[0];
+            for (int k = 0; k < 3; k++) {
+                assertEquals(ref[k], mine[k], 2e-3 * width, "w=" + c[0] + " s=" + c[1] + " p=" + probs[k]);
+            }
+        }
+    }
+
+    @Test
+    void negativeAndZeroParallaxesHaveAProperPosterior() {
+        EdsdPosterior post = EdsdPosterior.standard();
+        double[] q = new double[3];
+        for (double w : new double[] {-5, -1, -0.1, 0}) {
+            assertTrue(post.percentilesKpc(w, 0.5, L, new double[] {StarDeriver.P16, 0.5, StarDeriver.P84}, q), "w=" + w);
+            assertTrue(q[0] > 0 && q[0] < q[1] && q[1] < q[2], "ordered percentiles for w=" + w);
+        }
+        // with no information the posterior tends to the prior: median of r^2 exp(-r/L) is 2.674 L
+        // (Gamma(3, L) median, from the gamma quantile function of Commons Math)
+        assertTrue(post.percentilesKpc(0, 1e4, L, new double[] {0.5}, q));
+        double priorMedian = new org.apache.commons.math3.distribution.GammaDistribution(3, L).inverseCumulativeProbability(0.5);
+        assertEquals(priorMedian, q[0], 1e-3 * priorMedian);
+    }
+
+    @Test
+    void highSignificanceConvergesToTheInverseParallaxPercentiles() {
+        // w/s = 5000: the prior is negligible; the percentiles are 1/(w +- s) (monotone transform of a Gaussian)
+        EdsdPosterior post = EdsdPosterior.standard();
+        double[] q = new double[3];
+        assertTrue(post.percentilesKpc(100, 0.02, L, new double[] {StarDeriver.P16, 0.5, StarDeriver.P84}, q));
+        assertEquals(1 / 100.02, q[0], 1e-7);
+        assertEquals(1 / 100.0, q[1], 1e-7);
+        assertEquals(1 / 99.98, q[2], 1e-7);
+    }
+
+    @Test
+    void noPosteriorForInvalidInputs() {
+        EdsdPosterior post = EdsdPosterior.standard();
+        double[] q = new double[1];
+        assertFalse(post.percentilesKpc(1, 0, L, new double[] {0.5}, q));
+        assertTrue(Double.isNaN(q[0]));
+        assertFalse(post.percentilesKpc(Double.NaN, 0.1, L, new double[] {0.5}, q));
+        assertFalse(post.percentilesKpc(1, Double.POSITIVE_INFINITY, L, new double[] {0.5}, q));
+    }
+}

@@ -1,0 +1,255 @@
+package org.starderive.physics;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertNull;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+import static org.starderive.physics.QualityFlag.*;
+
+import org.apache.commons.math3.analysis.solvers.BrentSolver;
+import org.junit.jupiter.api.Test;
+
+class StarDeriverTest {
+    private final StarDeriver deriver = new StarDeriver(DeriveSettings.defaults());
+    private final StarResult out = new StarResult();
+
+    /**
+     * The Sun seen from 10 pc: M_V = 4.81 (Willmer 2018, ApJS 236, 47); (B-V) = 0.653 and (V-Ic) = 0.701
+     * (Ramirez et al. 2012, ApJ 752, 5); (V-Ks) = 1.544 and (J-Ks) = 0.362 (Casagrande et al. 2010, Table 7).
+     */
+    static StarInput solarTwinAt10pc() {
+        double v = 4.81;
+        double ks = v - 1.544;
+        return new StarInput()
+                .parallax(100.0, 0.01)
+                .magnitude(Band.V, v, 0.01)
+                .magnitude(Band.B, v + 0.653, 0.01)
+                .magnitude(Band.IC, v - 0.701, 0.01)
+                .magnitude(Band.KS, ks, 0.01)
+                .magnitude(Band.J, ks + 0.362, 0.01)
+                .ebv(0.0, 0.0)
+                .feh(0.0, 0.05);
+    }
+
+    @Test
+    void theSunAtTenParsecGivesTheNominalSun() {
+        StarResult r = deriver.derive(solarTwinAt10pc(), out);
+        // nominal Teff, L, R (IAU 2015 B3); M about 1 (Eker et al. 2018); log g 4.438, rho 1409.8 (derived constants)
+        assertEquals(5772, r.teffK, 40);
+        assertEquals(1.0, r.lumLsun, 0.03);
+        assertEquals(1.0, r.radiusRsun, 0.03);
+        assertEquals(1.0, r.massMsun, 0.03);
+        assertEquals(4.438, r.loggCgs, 0.03);
+        assertEquals(1409.8, r.densityKgM3, 0.1 * 1409.8);
+        assertEquals(1.0, r.densitySun, 0.1);
+        // 1 R_sun at 10 pc subtends 0.93009 mas (IAU 2015 B2/B3)
+        assertEquals(0.93009, r.angDiamMas, 0.03);
+        assertEquals(10.0, r.distPc, 1e-3);
+        assertEquals(0.0, r.distModulusMag, 1e-3);
+        assertEquals(4.81, r.absMag[Band.V.ordinal()], 1e-3);
+        // M_bol,sun on the IAU scale: 4.74 (IAU 2015 B2)
+        assertEquals(4.74, r.mbolMag, 0.03);
+        assertEquals(Iau2015.L_SUN_W, r.lumW, 0.03 * Iau2015.L_SUN_W);
+        assertEquals(LuminosityClass.MAIN_SEQUENCE, r.lumClass);
+        assertEquals(StarResult.DistanceMethod.INVERSE_PARALLAX, r.distMethod);
+        assertEquals("C10/B-V,C10/V-Ic,C10/V-J,C10/V-Ks,C10/J-Ks", r.teffFrom());
+        assertEquals(0L, r.flags & ~0L, "flags: " + QualityFlag.names(r.flags));
+        // the surface-brightness diameter (Kervella et al. 2004) agrees with the Stefan-Boltzmann one
+        assertEquals(r.angDiamMas, r.angDiamSbrMas, 0.03 * r.angDiamMas);
+        // every uncertainty is present and positive
+        for (double e : new double[] {r.teffErrK, r.lumErrLsun, r.radiusErrRsun, r.massErrMsun, r.loggErrCgs,
+                r.densityErrKgM3, r.angDiamErrMas, r.bcVErr, r.mbolErrMag, r.distModulusErrMag}) {
+            assertTrue(e > 0, "uncertainty " + e);
+        }
+    }
+
+    @Test
+    void dereddeningRecoversTheUnreddenedStar() {
+        StarResult clean = new StarDeriver(DeriveSettings.defaults()).derive(solarTwinAt10pc(), new StarResult());
+        StarInput red = solarTwinAt10pc();
+        double ebv = 0.3;
+        double rv = 3.1;
+        for (Band b : new Band[] {Band.V, Band.B, Band.IC, Band.KS, Band.J}) {
+            red.mag[b.ordinal()] += rv * ebv * CardelliClaytonMathis1989.bandOverAv(b, rv);
+        }
+        red.ebv(ebv, 0.0); // same error as the clean star, so the relation weights are the same
+        StarResult r = deriver.derive(red, out);
+        assertEquals(clean.teffK, r.teffK, 0.01);
+        assertEquals(clean.lumLsun, r.lumLsun, 1e-6);
+        assertEquals(rv * ebv, r.avMag, 1e-12);
+    }
+
+    @Test
+    void aGiantIsClassedEvolvedAndGetsNoMass() throws Exception {
+        // a red giant of 4700 K and 10 R_sun at 500 pc, its V-Ks made with the giant relation (round trip)
+        double teff = 4700;
+        TeffRelation giantVKs = TeffRelations.byId("GHB09/V-Ks");
+        double vks = new BrentSolver(1e-10).solve(100, x -> giantVKs.teff(x, 0, 2.5) - teff, 1.2, 3.3);
+        double lum = 100 * Math.pow(teff / Iau2015.TEFF_SUN_K, 4);
+        double mbol = BolometricCorrectionFlower1996.MBOL_SUN - 2.5 * Math.log10(lum);
+        double v = mbol - BolometricCorrectionFlower1996.bcV(teff) + 5 * Math.log10(500 / 10.0);
+        StarInput in = new StarInput().parallax(2.0, 0.01).magnitude(Band.V, v, 0.01).magnitude(Band.KS, v - vks, 0.01)
+                .ebv(0, 0).feh(0, 0.1);
+        StarResult r = deriver.derive(in, out);
+        assertEquals(LuminosityClass.EVOLVED, r.lumClass);
+        assertEquals("GHB09/V-Ks", r.teffFrom());
+        assertEquals(teff, r.teffK, 1);
+        assertEquals(10.0, r.radiusRsun, 0.05);
+        assertTrue(Double.isNaN(r.massMsun) && Double.isNaN(r.loggCgs) && Double.isNaN(r.densityKgM3));
+        assertTrue(r.has(MASS_NOT_APPLICABLE));
+    }
+
+    @Test
+    void lowSignificanceParallaxUsesThePosteriorAndIsFlagged() {
+        StarInput in = solarTwinAt10pc();
+        in.parallaxMas = 1.0;
+        in.parallaxErrMas = 0.5;
+        StarResult r = deriver.derive(in, out);
+        assertTrue(r.has(PARALLAX_LOW_SNR));
+        assertEquals(StarResult.DistanceMethod.EDSD_MEDIAN, r.distMethod);
+        assertTrue(r.distLoPc < r.distPc && r.distPc < r.distHiPc);
+    }
+
+    @Test
+    void negativeParallaxStillGetsAPosteriorDistance() {
+        StarInput in = solarTwinAt10pc();
+        in.parallaxMas = -0.5;
+        in.parallaxErrMas = 0.5;
+        StarResult r = deriver.derive(in, out);
+        assertTrue(r.has(PARALLAX_NONPOSITIVE) && r.has(PARALLAX_LOW_SNR));
+        assertTrue(r.distPc > 0);
+        // with the inverse parallax forced there is no distance for a negative parallax
+        StarResult inv = new StarDeriver(DeriveSettings.builder().distanceMethod(DeriveSettings.DistanceMethod.INVERSE).build())
+                .derive(in, new StarResult());
+        assertTrue(Double.isNaN(inv.distPc));
+        assertTrue(inv.has(PARALLAX_NONPOSITIVE));
+    }
+
+    @Test
+    void zeroPointIsSubtractedFromTheParallax() {
+        StarInput in = solarTwinAt10pc();
+        StarResult r = new StarDeriver(DeriveSettings.builder().parallaxZeroPointMas(-0.02).build()).derive(in, out);
+        assertEquals(100.02, r.parallaxCorrMas, 1e-9);
+        assertEquals(1000 / 100.02, r.distPc, 1e-9);
+    }
+
+    @Test
+    void missingParallaxStillGivesTeffAndAngularDiameter() {
+        StarInput in = solarTwinAt10pc();
+        in.hasParallax = false;
+        StarResult r = deriver.derive(in, out);
+        assertTrue(r.has(PARALLAX_MISSING) && r.has(LUM_CLASS_ASSUMED) && r.has(MASS_NOT_APPLICABLE));
+        assertEquals(5772, r.teffK, 40);
+        assertEquals(0.93009, r.angDiamMas, 0.03);
+        assertTrue(Double.isNaN(r.lumLsun) && Double.isNaN(r.distPc));
+        assertNull(r.lumClass);
+    }
+
+    @Test
+    void sentinelsNaNsAndBadErrorsAreFlaggedAndIgnored() {
+        StarInput in = solarTwinAt10pc();
+        in.mag[Band.B.ordinal()] = 99.99;
+        StarResult r = deriver.derive(in, out);
+        assertTrue(r.has(MAGNITUDE_SENTINEL));
+        assertFalse(r.teffFrom().contains("B-V"));
+
+        in = solarTwinAt10pc();
+        in.mag[Band.J.ordinal()] = Double.NaN;
+        in.magErr[Band.IC.ordinal()] = -0.01;
+        r = deriver.derive(in, out);
+        assertTrue(r.has(INPUT_INVALID));
+        assertEquals("C10/B-V,C10/V-Ks", r.teffFrom());
+
+        in = solarTwinAt10pc();
+        in.parallaxErrMas = 0;
+        r = deriver.derive(in, out);
+        assertTrue(r.has(INPUT_INVALID));
+        assertTrue(Double.isNaN(r.distPc));
+
+        in = solarTwinAt10pc();
+        in.parallaxMas = 5000; // a parallax in microarcseconds read as mas
+        r = deriver.derive(in, out);
+        assertTrue(r.has(PARALLAX_IMPLAUSIBLE));
+        assertTrue(Double.isNaN(r.distPc));
+    }
+
+    @Test
+    void coloursOutsideEveryRangeGiveNoTeffUnlessExtrapolationIsAllowed() {
+        StarInput in = new StarInput().parallax(10, 0.1).magnitude(Band.V, 15, 0.01).magnitude(Band.KS, 9, 0.01);
+        StarResult r = deriver.derive(in, out);
+        assertTrue(r.has(COLOUR_OUT_OF_RANGE));
+        assertFalse(r.has(TEFF_EXTRAPOLATED));
+        assertTrue(Double.isNaN(r.teffK) && Double.isNaN(r.lumLsun));
+
+        StarDeriver lax = new StarDeriver(DeriveSettings.builder().allowExtrapolation(true).build());
+        r = lax.derive(in, new StarResult());
+        assertTrue(r.has(TEFF_EXTRAPOLATED) && r.has(COLOUR_OUT_OF_RANGE));
+        assertTrue(r.teffK > 2000 && r.teffK < 4000, "extrapolated Teff " + r.teffK);
+    }
+
+    @Test
+    void disagreeingColoursAreFlagged() {
+        StarInput in = solarTwinAt10pc();
+        in.mag[Band.B.ordinal()] = in.mag[Band.V.ordinal()] + 1.0; // B-V says a K star, the rest say G2
+        StarResult r = deriver.derive(in, out);
+        assertTrue(r.has(TEFF_COLOURS_DISAGREE), "chi2 " + r.teffChi2);
+        StarResult ok = deriver.derive(solarTwinAt10pc(), new StarResult());
+        assertFalse(ok.has(TEFF_COLOURS_DISAGREE), "chi2 " + ok.teffChi2);
+    }
+
+    @Test
+    void coolDwarfFromGaiaBandsGetsVFromGAndAnUnreliableBc() {
+        // an M dwarf at 20 pc with only G, BP, RP: BP-RP = 2.0 (Casagrande et al. 2021 dwarf limit)
+        StarInput in = new StarInput().parallax(50, 0.05).magnitude(Band.G, 10.0, 0.003)
+                .magnitude(Band.BP, 11.0, 0.003).magnitude(Band.RP, 9.0, 0.003).ebv(0, 0);
+        StarResult r = deriver.derive(in, out);
+        assertTrue(r.has(V_FROM_G) && r.has(BC_UNRELIABLE) && r.has(METALLICITY_ASSUMED));
+        assertTrue(r.teffK < 4000, "Teff " + r.teffK);
+        assertEquals(LuminosityClass.MAIN_SEQUENCE, r.lumClass);
+    }
+
+    @Test
+    void absentExtinctionAndMetallicityAreAssumedAndFlagged() {
+        StarInput in = solarTwinAt10pc();
+        in.hasEbv = false;
+        in.hasFeh = false;
+        StarResult r = deriver.derive(in, out);
+        assertTrue(r.has(EXTINCTION_ASSUMED) && r.has(METALLICITY_ASSUMED));
+        in.ebv(-0.1, 0.01);
+        r = deriver.derive(in, out);
+        assertTrue(r.has(EXTINCTION_ASSUMED) && r.has(INPUT_INVALID));
+    }
+
+    @Test
+    void noPhotometryAtAll() {
+        StarResult r = deriver.derive(new StarInput().parallax(10, 0.1), out);
+        assertTrue(r.has(PHOTOMETRY_MISSING));
+        assertTrue(Double.isNaN(r.teffK));
+        assertEquals(100, r.distPc, 1e-9);
+    }
+
+    @Test
+    void badSettingsAreRejectedWithTheRule() {
+        IllegalArgumentException e = assertThrows(IllegalArgumentException.class,
+                () -> DeriveSettings.builder().parallaxSnrMin(Double.NaN).build());
+        assertTrue(e.getMessage().contains("parallax SNR threshold") && e.getMessage().contains("must be"), e.getMessage());
+        assertThrows(IllegalArgumentException.class, () -> DeriveSettings.builder().priorLengthKpc(0).build());
+        assertThrows(IllegalArgumentException.class, () -> DeriveSettings.builder().rv(-3.1).build());
+        assertThrows(IllegalArgumentException.class, () -> DeriveSettings.builder().parallaxZeroPointMas(Double.POSITIVE_INFINITY).build());
+        assertThrows(IllegalArgumentException.class, () -> DeriveSettings.builder().relations(java.util.List.of()).build());
+    }
+
+    @Test
+    void flagBitsAreUniqueAndStable() {
+        java.util.Set<Integer> bits = new java.util.HashSet<>();
+        for (QualityFlag f : QualityFlag.values()) {
+            assertTrue(bits.add(f.bit()), f.name());
+        }
+        // part of the output format (README): pin a few
+        assertEquals(0, PARALLAX_LOW_SNR.bit());
+        assertEquals(7, COLOUR_OUT_OF_RANGE.bit());
+        assertEquals(13, MASS_NOT_APPLICABLE.bit());
+        assertEquals(20, DUPLICATE_ID.bit());
+    }
+}
