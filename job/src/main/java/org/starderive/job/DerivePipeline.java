@@ -1,0 +1,266 @@
+package org.starderive.job;
+
+import static org.apache.spark.sql.functions.broadcast;
+import static org.apache.spark.sql.functions.coalesce;
+import static org.apache.spark.sql.functions.col;
+import static org.apache.spark.sql.functions.concat_ws;
+import static org.apache.spark.sql.functions.count;
+import static org.apache.spark.sql.functions.lit;
+import static org.apache.spark.sql.functions.row_number;
+import static org.apache.spark.sql.functions.when;
+
+import java.util.ArrayList;
+import java.util.EnumMap;
+import java.util.LinkedHashSet;
+import java.util.List;
+import java.util.Map;
+import java.util.Set;
+import org.apache.spark.sql.Column;
+import org.apache.spark.sql.Dataset;
+import org.apache.spark.sql.Row;
+import org.apache.spark.sql.expressions.Window;
+import org.apache.spark.sql.expressions.WindowSpec;
+import org.apache.spark.sql.types.DataType;
+import org.apache.spark.sql.types.DataTypes;
+import org.apache.spark.sql.types.NumericType;
+import org.apache.spark.sql.types.StructField;
+import org.apache.spark.sql.types.StructType;
+import org.starderive.physics.Band;
+import org.starderive.physics.QualityFlag;
+import org.starderive.udf.DerivedColumn;
+import org.starderive.udf.DerivedSchema;
+import org.starderive.udf.StarColumns;
+import org.starderive.udf.StarDeriveUdf;
+
+/**
+ * The transformation from input table(s) to the derived catalogue, without I/O:
+ * <ol>
+ *   <li>join policy (two tables): a full outer join on the star id, copy by copy — the k-th row of an id in the
+ *       astrometry table meets the k-th row of that id in the photometry table (copies ordered by their content, so
+ *       the pairing is deterministic). An id present on one side only gives a row with the other side's columns
+ *       null; an id repeated k times on one side and j times on the other gives max(k, j) rows. No input row is
+ *       lost or multiplied. Columns present in both tables (other than the id) are taken from the astrometry table
+ *       where it has the row, else from the photometry table;</li>
+ *   <li>the survey's columns are mapped to the canonical inputs (units converted) as the config says, and checked:
+ *       a missing mapped column or a non-numeric one stops the job;</li>
+ *   <li>ids occurring more than once are flagged {@code DUPLICATE_ID} and every copy kept;</li>
+ *   <li>the UDF adds the derived columns, each with its unit/UCD/description metadata.</li>
+ * </ol>
+ */
+public final class DerivePipeline {
+    static final String DUP_COL = "__starderive_dup";
+    private static final String OCC_COL = "__starderive_occ";
+
+    private final JobConfig config;
+    private final String idColumn;
+
+    public DerivePipeline(JobConfig config, String idColumn) {
+        this.config = config;
+        this.idColumn = idColumn;
+    }
+
+    public String idColumn() { return idColumn; }
+
+    private static JobException missing(String table, String column, String what) {
+        return JobException.input("Input " + table + ": missing column '" + column + "' (" + what + ")");
+    }
+
+    private static void requireNumeric(StructType schema, String table, String column, String what) {
+        if (!schema.getFieldIndex(column).isDefined()) {
+            throw missing(table, column, what);
+        }
+        DataType t = schema.apply(column).dataType();
+        if (!(t instanceof NumericType)) {
+            throw JobException.input("Input " + table + ": column '" + column + "' has type " + t.simpleString()
+                    + " (rule: " + what + " must be numeric)");
+        }
+    }
+
+    /** Joins astrometry and photometry by the policy above; adds the duplicate marker. */
+    public Dataset<Row> join(InputTable astro, InputTable phot) {
+        Dataset<Row> a = astro.data();
+        Dataset<Row> p = phot.data();
+        if (!a.schema().getFieldIndex(idColumn).isDefined()) {
+            throw missing(astro.role() + " " + astro.paths(), idColumn, "the star id to join on");
+        }
+        if (!p.schema().getFieldIndex(idColumn).isDefined()) {
+            throw missing(phot.role() + " " + phot.paths(), idColumn, "the star id to join on");
+        }
+        DataType ta = a.schema().apply(idColumn).dataType();
+        DataType tp = p.schema().apply(idColumn).dataType();
+        if (!ta.equals(tp)) {
+            throw JobException.input("Input " + phot.role() + ": id column '" + idColumn + "' has type " + tp.simpleString()
+                    + " but " + ta.simpleString() + " in " + astro.role() + " (rule: the join key has one type in both tables)");
+        }
+        a = withOccurrence(a, "a");
+        p = withOccurrence(p, "p");
+        Column cond = a.col(idColumn).eqNullSafe(p.col(idColumn)).and(a.col(OCC_COL).equalTo(p.col(OCC_COL)));
+        Dataset<Row> j = a.join(p, cond, "full_outer");
+        Set<String> aCols = new LinkedHashSet<>(List.of(astro.data().columns()));
+        Set<String> pCols = new LinkedHashSet<>(List.of(phot.data().columns()));
+        List<Column> sel = new ArrayList<>();
+        Column aPresent = a.col(OCC_COL).isNotNull();
+        for (String c : aCols) {
+            if (pCols.contains(c)) {
+                sel.add(when(aPresent, a.col(c)).otherwise(p.col(c)).as(c));
+            } else {
+                sel.add(a.col(c));
+            }
+        }
+        for (String c : pCols) {
+            if (!aCols.contains(c)) {
+                sel.add(p.col(c));
+            }
+        }
+        sel.add(coalesce(a.col(DUP_COL), lit(false)).or(coalesce(p.col(DUP_COL), lit(false))).as(DUP_COL));
+        return j.select(sel.toArray(new Column[0]));
+    }
+
+    /** Numbers the copies of each id (deterministic order: by content) and marks ids with more than one copy. */
+    private Dataset<Row> withOccurrence(Dataset<Row> d, String side) {
+        List<Column> order = new ArrayList<>();
+        for (StructField f : d.schema().fields()) {
+            if (!f.name().equals(idColumn) && !(f.dataType() instanceof org.apache.spark.sql.types.MapType)) {
+                order.add(col(f.name()).asc_nulls_first());
+            }
+        }
+        WindowSpec byId = Window.partitionBy(col(idColumn));
+        WindowSpec ordered = byId.orderBy(order.toArray(new Column[0]));
+        return d.withColumn(OCC_COL, row_number().over(ordered))
+                .withColumn(DUP_COL, count(lit(1)).over(byId).gt(1));
+    }
+
+    /** Marks duplicate ids of a single table: a small aggregate of the repeated ids, joined back (broadcast if small). */
+    public Dataset<Row> markDuplicates(Dataset<Row> d, String table) {
+        if (!d.schema().getFieldIndex(idColumn).isDefined()) {
+            throw missing(table, idColumn, "the star id; set columns.star_id in the config");
+        }
+        Dataset<Row> dups = d.groupBy(col(idColumn)).count().filter(col("count").gt(1))
+                .select(col(idColumn).as("__dup_id"), lit(true).as(DUP_COL));
+        long nDupIds = dups.count();
+        if (nDupIds == 0) {
+            return d.withColumn(DUP_COL, lit(false));
+        }
+        Dataset<Row> small = nDupIds <= 1_000_000 ? broadcast(dups) : dups;
+        Dataset<Row> j = d.join(small, d.col(idColumn).equalTo(small.col("__dup_id")), "left");
+        return j.drop("__dup_id").withColumn(DUP_COL, coalesce(col(DUP_COL), lit(false)));
+    }
+
+    /** The canonical input struct's columns, built from the survey's columns as the config maps them. */
+    public Map<String, Column> canonicalInputs(StructType schema, String table) {
+        Map<String, Column> m = new java.util.LinkedHashMap<>();
+        requireNumeric(schema, table, config.parallaxColumn(), "parallax (columns.parallax)");
+        requireNumeric(schema, table, config.parallaxErrColumn(), "parallax error (columns.parallax_err)");
+        double f = config.parallaxUnit().toMas;
+        m.put(StarColumns.PARALLAX_MAS, col(config.parallaxColumn()).cast("double").multiply(f));
+        m.put(StarColumns.PARALLAX_ERR_MAS, col(config.parallaxErrColumn()).cast("double").multiply(f));
+
+        Map<Band, JobConfig.BandMapping> bands = new EnumMap<>(Band.class);
+        if (!config.explicitBands().isEmpty()) {
+            bands.putAll(config.explicitBands());
+        } else {
+            for (Band b : Band.values()) {
+                if (schema.getFieldIndex(StarColumns.mag(b)).isDefined()) {
+                    bands.put(b, null);
+                }
+            }
+            if (bands.isEmpty()) {
+                throw JobException.input("Input " + table + ": no magnitude column (rule: at least one of mag_b, mag_v, mag_rc, "
+                        + "mag_ic, mag_j, mag_h, mag_ks, mag_g, mag_bp, mag_rp, or columns.bands in the config)");
+            }
+        }
+        for (Band b : Band.values()) {
+            Column mag = lit(null).cast("double");
+            Column err = lit(null).cast("double");
+            if (bands.containsKey(b)) {
+                JobConfig.BandMapping bm = bands.get(b);
+                String magCol = bm == null ? StarColumns.mag(b) : bm.magColumn;
+                requireNumeric(schema, table, magCol, "magnitude in " + b.label());
+                mag = col(magCol).cast("double");
+                if (bm != null && bm.err.isConstant()) {
+                    err = lit(bm.err.value());
+                } else {
+                    String errCol = bm == null ? StarColumns.magErr(b) : bm.err.column();
+                    requireNumeric(schema, table, errCol, "error of the " + b.label() + " magnitude (or columns.bands."
+                            + b.suffix() + ".err_value)");
+                    err = col(errCol).cast("double");
+                }
+            }
+            m.put(StarColumns.mag(b), mag);
+            m.put(StarColumns.magErr(b), err);
+        }
+        double rv = config.settings().rv();
+        if (!config.av().isNone()) {
+            m.put(StarColumns.EBV, source(schema, table, config.av(), null, "A_V (columns.av)").divide(rv));
+        } else {
+            m.put(StarColumns.EBV, source(schema, table, config.ebv(), StarColumns.EBV, "E(B-V) (columns.ebv)"));
+        }
+        m.put(StarColumns.EBV_ERR, source(schema, table, config.ebvErr(), StarColumns.EBV_ERR, "E(B-V) error (columns.ebv_err)"));
+        m.put(StarColumns.FEH, source(schema, table, config.feh(), StarColumns.FEH, "[Fe/H] (columns.feh)"));
+        m.put(StarColumns.FEH_ERR, source(schema, table, config.fehErr(), StarColumns.FEH_ERR, "[Fe/H] error (columns.feh_err)"));
+        return m;
+    }
+
+    private static Column source(StructType schema, String table, JobConfig.Source s, String defaultColumn, String what) {
+        if (s.isConstant()) {
+            return lit(s.value());
+        }
+        if (s.isColumn()) {
+            requireNumeric(schema, table, s.column(), what);
+            return col(s.column()).cast("double");
+        }
+        if (defaultColumn != null && schema.getFieldIndex(defaultColumn).isDefined()) {
+            requireNumeric(schema, table, defaultColumn, what);
+            return col(defaultColumn).cast("double");
+        }
+        return lit(null).cast("double");
+    }
+
+    /**
+     * Input columns passed through, then every derived column with its metadata; the duplicate marker becomes the
+     * DUPLICATE_ID flag bit.
+     */
+    public Dataset<Row> derive(Dataset<Row> withDup, String table) {
+        StructType schema = withDup.schema();
+        for (String derived : DerivedSchema.names()) {
+            if (schema.getFieldIndex(derived).isDefined()) {
+                throw JobException.input("Input " + table + ": column '" + derived + "' has the name of a derived column "
+                        + "(rule: input columns must not collide with derived ones; rename it upstream)");
+            }
+        }
+        Map<String, Column> inputs = canonicalInputs(schema, table);
+        List<Column> fields = new ArrayList<>();
+        for (String f : StarColumns.INPUT_FIELDS) {
+            fields.add(inputs.get(f).as(f));
+        }
+        Column result = StarDeriveUdf.function(config.settings()).apply(org.apache.spark.sql.functions.struct(fields.toArray(new Column[0])));
+        String d = "__starderive_result";
+        Dataset<Row> withResult = withDup.withColumn(d, result);
+        List<Column> sel = new ArrayList<>();
+        for (String c : schema.fieldNames()) {
+            if (!c.equals(DUP_COL)) {
+                sel.add(col(c));
+            }
+        }
+        long dupMask = QualityFlag.DUPLICATE_ID.mask();
+        Column dup = col(DUP_COL);
+        for (DerivedColumn c : DerivedSchema.COLUMNS) {
+            Column v = col(d + "." + c.name());
+            if (c.name().equals("flags")) {
+                v = when(dup, v.bitwiseOR(lit(dupMask))).otherwise(v);
+            } else if (c.name().equals("flag_names")) {
+                // DUPLICATE_ID is the highest bit: appending keeps the names in bit order
+                v = when(dup, org.apache.spark.sql.functions.array_union(v,
+                        org.apache.spark.sql.functions.array(lit(QualityFlag.DUPLICATE_ID.name())))).otherwise(v);
+            }
+            sel.add(v.as(c.name(), DerivedSchema.metadata(c)));
+        }
+        return withResult.select(sel.toArray(new Column[0]));
+    }
+
+    /** CSV cannot hold arrays: flag names become one '|'-separated text. */
+    public static Dataset<Row> forCsv(Dataset<Row> d) {
+        return d.withColumn("flag_names", concat_ws("|", col("flag_names")));
+    }
+
+}

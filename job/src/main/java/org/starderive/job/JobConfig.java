@@ -1,0 +1,414 @@
+package org.starderive.job;
+
+import com.fasterxml.jackson.core.JsonProcessingException;
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import com.fasterxml.jackson.dataformat.yaml.YAMLFactory;
+import java.io.IOException;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.Collections;
+import java.util.Iterator;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Set;
+import java.util.TreeSet;
+import org.starderive.physics.Band;
+import org.starderive.physics.DeriveSettings;
+import org.starderive.udf.StarColumns;
+
+/**
+ * The job's configuration: how the survey's columns map to ours, their units, and the physics settings.
+ * Read from YAML as <em>data only</em>: every key is looked up in the tables below, an unknown key or a value of the
+ * wrong kind stops the job (exit 2) with a message naming the file, the key and the rule. Nothing in the file is
+ * ever evaluated or used as a class name.
+ *
+ * <pre>
+ * columns:
+ *   star_id: source_id            # id column (default star_id)
+ *   parallax: plx                 # default parallax_mas
+ *   parallax_err: e_plx           # default parallax_err_mas
+ *   parallax_unit: mas            # mas | arcsec | uas (default mas)
+ *   bands:                        # default: mag_&lt;band&gt; / mag_&lt;band&gt;_err for every band present
+ *     v: {mag: Vmag, err: e_Vmag} # or err_value: 0.02 for a constant error
+ *   ebv: {column: ebv}            # or {value: 0.05}; default column ebv when present
+ *   ebv_err: {column: ebv_err}    # or {value: 0.01}
+ *   av: {column: a_v}             # alternative to ebv: E(B-V) = A_V / R_V
+ *   feh: {column: feh}            # or {value: -0.2}
+ *   feh_err: {column: feh_err}    # or {value: 0.1}
+ * physics:                        # see DeriveSettings; every key optional
+ *   parallax_zero_point_mas: 0.0
+ *   ...
+ * output:
+ *   compression: snappy           # snappy | zstd | gzip | none
+ * </pre>
+ */
+public final class JobConfig {
+
+    /** Where a per-star quantity comes from: a column, a constant, or nowhere. */
+    public static final class Source {
+        private final String column;
+        private final Double value;
+
+        private Source(String column, Double value) {
+            this.column = column;
+            this.value = value;
+        }
+
+        public static Source column(String name) { return new Source(name, null); }
+
+        public static Source constant(double v) { return new Source(null, v); }
+
+        public static Source none() { return new Source(null, null); }
+
+        public String column() { return column; }
+
+        public Double value() { return value; }
+
+        public boolean isColumn() { return column != null; }
+
+        public boolean isConstant() { return value != null; }
+
+        public boolean isNone() { return column == null && value == null; }
+
+        @Override
+        public String toString() {
+            return isColumn() ? "column " + column : isConstant() ? "value " + value : "none";
+        }
+    }
+
+    /** Mapping of one band. */
+    public static final class BandMapping {
+        public final Band band;
+        public final String magColumn;
+        public final Source err;
+
+        BandMapping(Band band, String magColumn, Source err) {
+            this.band = band;
+            this.magColumn = magColumn;
+            this.err = err;
+        }
+    }
+
+    /** Units a parallax column may be in, with the factor to mas. */
+    public enum ParallaxUnit {
+        MAS(1.0), ARCSEC(1000.0), UAS(0.001);
+
+        public final double toMas;
+
+        ParallaxUnit(double toMas) { this.toMas = toMas; }
+    }
+
+    // Config keys (YAML paths) with their defaults
+    public static final String KEY_COLUMNS = "columns";
+    public static final String KEY_PHYSICS = "physics";
+    public static final String KEY_OUTPUT = "output";
+    public static final String COMPRESSION_DEFAULT = "snappy";
+
+    private static final Set<String> TOP_KEYS = Set.of(KEY_COLUMNS, KEY_PHYSICS, KEY_OUTPUT);
+    private static final Set<String> COLUMN_KEYS = Set.of("star_id", "parallax", "parallax_err", "parallax_unit",
+            "bands", "ebv", "ebv_err", "av", "feh", "feh_err");
+    private static final Set<String> BAND_KEYS = Set.of("mag", "err", "err_value");
+    private static final Set<String> SOURCE_KEYS = Set.of("column", "value");
+    private static final Set<String> OUTPUT_KEYS = Set.of("compression");
+    private static final Set<String> COMPRESSIONS = Set.of("snappy", "zstd", "gzip", "none");
+    /** physics keys, each one line of DeriveSettings. */
+    private static final Set<String> PHYSICS_KEYS = Set.of("parallax_zero_point_mas", "parallax_snr_min",
+            "parallax_max_mas", "distance_method", "prior_length_kpc", "posterior_percentiles", "r_v", "ebv_default",
+            "ebv_err_default", "feh_default", "feh_err_default", "allow_extrapolation", "teff_disagree_p",
+            "diameter_disagree_sigma", "giant_logg_prior", "giant_logg_prior_err", "mag_min", "mag_max", "relations");
+
+    private final String origin;
+    private final String idColumn;
+    private final String parallaxColumn;
+    private final String parallaxErrColumn;
+    private final ParallaxUnit parallaxUnit;
+    private final Map<Band, BandMapping> explicitBands;
+    private final Source ebv;
+    private final Source ebvErr;
+    private final Source av;
+    private final Source feh;
+    private final Source fehErr;
+    private final DeriveSettings settings;
+    private final String compression;
+    private final JsonNode resolved;
+
+    private JobConfig(String origin, JsonNode root) {
+        this.origin = origin;
+        checkKeys(root, "", TOP_KEYS);
+        JsonNode cols = object(root, KEY_COLUMNS);
+        checkKeys(cols, KEY_COLUMNS, COLUMN_KEYS);
+        idColumn = text(cols, KEY_COLUMNS, "star_id", StarColumns.STAR_ID);
+        parallaxColumn = text(cols, KEY_COLUMNS, "parallax", StarColumns.PARALLAX_MAS);
+        parallaxErrColumn = text(cols, KEY_COLUMNS, "parallax_err", StarColumns.PARALLAX_ERR_MAS);
+        String unit = text(cols, KEY_COLUMNS, "parallax_unit", "mas");
+        switch (unit) {
+            case "mas": parallaxUnit = ParallaxUnit.MAS; break;
+            case "arcsec": parallaxUnit = ParallaxUnit.ARCSEC; break;
+            case "uas": parallaxUnit = ParallaxUnit.UAS; break;
+            default: throw bad(KEY_COLUMNS + ".parallax_unit", unit, "must be one of mas, arcsec, uas");
+        }
+        Map<Band, BandMapping> bands = new LinkedHashMap<>();
+        JsonNode bandsNode = object(cols, "bands");
+        Iterator<Map.Entry<String, JsonNode>> it = bandsNode.fields();
+        while (it.hasNext()) {
+            Map.Entry<String, JsonNode> e = it.next();
+            String path = KEY_COLUMNS + ".bands." + e.getKey();
+            Band b;
+            try {
+                b = Band.bySuffix(e.getKey());
+            } catch (IllegalArgumentException ex) {
+                throw bad(path, e.getKey(), "band must be one of b v rc ic j h ks g bp rp");
+            }
+            if (!e.getValue().isObject()) {
+                throw bad(path, e.getValue().toString(), "must be a mapping with mag and err (or err_value)");
+            }
+            checkKeys(e.getValue(), path, BAND_KEYS);
+            String mag = text(e.getValue(), path, "mag", null);
+            if (mag == null) {
+                throw bad(path + ".mag", "missing", "every mapped band needs its magnitude column");
+            }
+            Source err;
+            if (e.getValue().has("err") && e.getValue().has("err_value")) {
+                throw bad(path, "err and err_value", "give one of them, not both");
+            } else if (e.getValue().has("err_value")) {
+                err = Source.constant(number(e.getValue(), path, "err_value", Double.NaN));
+                if (!(err.value() > 0)) {
+                    throw bad(path + ".err_value", String.valueOf(err.value()), "must be > 0 mag");
+                }
+            } else {
+                err = Source.column(text(e.getValue(), path, "err", mag + "_err"));
+            }
+            bands.put(b, new BandMapping(b, mag, err));
+        }
+        explicitBands = Collections.unmodifiableMap(bands);
+        ebv = source(cols, "ebv");
+        ebvErr = source(cols, "ebv_err");
+        av = source(cols, "av");
+        feh = source(cols, "feh");
+        fehErr = source(cols, "feh_err");
+        if (!ebv.isNone() && !av.isNone()) {
+            throw bad(KEY_COLUMNS + ".av", av.toString(), "give either ebv or av, not both");
+        }
+        settings = physics(object(root, KEY_PHYSICS));
+        JsonNode out = object(root, KEY_OUTPUT);
+        checkKeys(out, KEY_OUTPUT, OUTPUT_KEYS);
+        compression = text(out, KEY_OUTPUT, "compression", COMPRESSION_DEFAULT);
+        if (!COMPRESSIONS.contains(compression)) {
+            throw bad(KEY_OUTPUT + ".compression", compression, "must be one of " + new TreeSet<>(COMPRESSIONS));
+        }
+        resolved = root;
+    }
+
+    /** The configuration with no file: canonical column names, default physics. */
+    public static JobConfig defaults() {
+        return new JobConfig("(defaults)", new ObjectMapper().createObjectNode());
+    }
+
+    public static JobConfig load(Path file) {
+        String text;
+        try {
+            text = Files.readString(file);
+        } catch (IOException e) {
+            throw JobException.config("Cannot read config file " + file + ": " + e.getMessage());
+        }
+        return parse(text, file.toString());
+    }
+
+    public static JobConfig parse(String yaml, String origin) {
+        ObjectMapper mapper = new ObjectMapper(new YAMLFactory());
+        JsonNode root;
+        try {
+            root = mapper.readTree(yaml);
+        } catch (JsonProcessingException e) {
+            throw JobException.config("Invalid config file " + origin + ": not valid YAML ("
+                    + e.getOriginalMessage() + ")");
+        }
+        if (root == null || root.isNull() || root.isMissingNode()) {
+            root = mapper.createObjectNode();
+        }
+        if (!root.isObject()) {
+            throw JobException.config("Invalid config file " + origin + ": top level must be a mapping of "
+                    + new TreeSet<>(TOP_KEYS));
+        }
+        return new JobConfig(origin, root);
+    }
+
+    private JobException bad(String key, String value, String rule) {
+        return JobException.config("Invalid config " + origin + ": " + key + " = " + value + " (" + rule + ")");
+    }
+
+    private void checkKeys(JsonNode node, String path, Set<String> allowed) {
+        Iterator<String> names = node.fieldNames();
+        while (names.hasNext()) {
+            String n = names.next();
+            if (!allowed.contains(n)) {
+                throw JobException.config("Invalid config " + origin + ": unknown key '" + (path.isEmpty() ? n : path + "." + n)
+                        + "' (allowed here: " + new TreeSet<>(allowed) + ")");
+            }
+        }
+    }
+
+    private JsonNode object(JsonNode parent, String key) {
+        JsonNode n = parent.get(key);
+        if (n == null || n.isNull()) {
+            return new ObjectMapper().createObjectNode();
+        }
+        if (!n.isObject()) {
+            throw bad(key, n.toString(), "must be a mapping");
+        }
+        return n;
+    }
+
+    private String text(JsonNode parent, String path, String key, String dflt) {
+        JsonNode n = parent.get(key);
+        if (n == null || n.isNull()) {
+            return dflt;
+        }
+        if (!n.isTextual() || n.asText().isBlank()) {
+            throw bad(path + "." + key, n.toString(), "must be a non-empty text");
+        }
+        return n.asText();
+    }
+
+    private double number(JsonNode parent, String path, String key, double dflt) {
+        JsonNode n = parent.get(key);
+        if (n == null || n.isNull()) {
+            return dflt;
+        }
+        if (!n.isNumber()) {
+            throw bad(path + "." + key, n.toString(), "must be a number");
+        }
+        return n.asDouble();
+    }
+
+    private boolean bool(JsonNode parent, String path, String key, boolean dflt) {
+        JsonNode n = parent.get(key);
+        if (n == null || n.isNull()) {
+            return dflt;
+        }
+        if (!n.isBoolean()) {
+            throw bad(path + "." + key, n.toString(), "must be true or false");
+        }
+        return n.asBoolean();
+    }
+
+    private Source source(JsonNode cols, String key) {
+        JsonNode n = cols.get(key);
+        String path = KEY_COLUMNS + "." + key;
+        if (n == null || n.isNull()) {
+            return Source.none();
+        }
+        if (!n.isObject()) {
+            throw bad(path, n.toString(), "must be {column: NAME} or {value: NUMBER}");
+        }
+        checkKeys(n, path, SOURCE_KEYS);
+        if (n.has("column") == n.has("value")) {
+            throw bad(path, n.toString(), "give exactly one of column or value");
+        }
+        if (n.has("column")) {
+            return Source.column(text(n, path, "column", null));
+        }
+        double v = number(n, path, "value", Double.NaN);
+        if (!Double.isFinite(v)) {
+            throw bad(path + ".value", String.valueOf(v), "must be finite");
+        }
+        return Source.constant(v);
+    }
+
+    private DeriveSettings physics(JsonNode p) {
+        checkKeys(p, KEY_PHYSICS, PHYSICS_KEYS);
+        String path = KEY_PHYSICS;
+        DeriveSettings.Builder b = DeriveSettings.builder()
+                .parallaxZeroPointMas(number(p, path, "parallax_zero_point_mas", DeriveSettings.PARALLAX_ZERO_POINT_MAS_DEFAULT))
+                .parallaxSnrMin(number(p, path, "parallax_snr_min", DeriveSettings.PARALLAX_SNR_MIN_DEFAULT))
+                .parallaxMaxMas(number(p, path, "parallax_max_mas", DeriveSettings.PARALLAX_MAX_MAS_DEFAULT))
+                .priorLengthKpc(number(p, path, "prior_length_kpc", DeriveSettings.PRIOR_LENGTH_KPC_DEFAULT))
+                .posteriorPercentiles(bool(p, path, "posterior_percentiles", DeriveSettings.POSTERIOR_PERCENTILES_DEFAULT))
+                .rv(number(p, path, "r_v", DeriveSettings.RV_DEFAULT))
+                .ebvDefault(number(p, path, "ebv_default", DeriveSettings.EBV_DEFAULT))
+                .ebvErrDefault(number(p, path, "ebv_err_default", DeriveSettings.EBV_ERR_DEFAULT))
+                .fehDefault(number(p, path, "feh_default", DeriveSettings.FEH_DEFAULT))
+                .fehErrDefault(number(p, path, "feh_err_default", DeriveSettings.FEH_ERR_DEFAULT))
+                .allowExtrapolation(bool(p, path, "allow_extrapolation", DeriveSettings.ALLOW_EXTRAPOLATION_DEFAULT))
+                .teffDisagreeP(number(p, path, "teff_disagree_p", DeriveSettings.TEFF_DISAGREE_P_DEFAULT))
+                .diameterDisagreeSigma(number(p, path, "diameter_disagree_sigma", DeriveSettings.DIAMETER_DISAGREE_SIGMA_DEFAULT))
+                .giantLoggPrior(number(p, path, "giant_logg_prior", DeriveSettings.GIANT_LOGG_PRIOR_DEFAULT))
+                .giantLoggPriorErr(number(p, path, "giant_logg_prior_err", DeriveSettings.GIANT_LOGG_PRIOR_ERR_DEFAULT))
+                .magMin(number(p, path, "mag_min", DeriveSettings.MAG_MIN_DEFAULT))
+                .magMax(number(p, path, "mag_max", DeriveSettings.MAG_MAX_DEFAULT));
+        String method = text(p, path, "distance_method", "auto");
+        switch (method) {
+            case "auto": b.distanceMethod(DeriveSettings.DistanceMethod.AUTO); break;
+            case "inverse": b.distanceMethod(DeriveSettings.DistanceMethod.INVERSE); break;
+            case "edsd": b.distanceMethod(DeriveSettings.DistanceMethod.EDSD); break;
+            default: throw bad(path + ".distance_method", method, "must be one of auto, inverse, edsd");
+        }
+        JsonNode rel = p.get("relations");
+        if (rel != null && !rel.isNull()) {
+            if (!rel.isArray()) {
+                throw bad(path + ".relations", rel.toString(), "must be a list of relation ids");
+            }
+            List<String> ids = new ArrayList<>();
+            rel.forEach(x -> ids.add(x.asText()));
+            try {
+                b.relations(ids);
+            } catch (IllegalArgumentException e) {
+                throw bad(path + ".relations", rel.toString(), e.getMessage());
+            }
+        }
+        try {
+            return b.build();
+        } catch (IllegalArgumentException e) {
+            throw JobException.config("Invalid config " + origin + ": physics: " + e.getMessage());
+        }
+    }
+
+    public String origin() { return origin; }
+    public String idColumn() { return idColumn; }
+    public String parallaxColumn() { return parallaxColumn; }
+    public String parallaxErrColumn() { return parallaxErrColumn; }
+    public ParallaxUnit parallaxUnit() { return parallaxUnit; }
+    /** Bands mapped explicitly in the file; when empty, the canonical mag_&lt;band&gt; columns present are used. */
+    public Map<Band, BandMapping> explicitBands() { return explicitBands; }
+    public Source ebv() { return ebv; }
+    public Source ebvErr() { return ebvErr; }
+    public Source av() { return av; }
+    public Source feh() { return feh; }
+    public Source fehErr() { return fehErr; }
+    public DeriveSettings settings() { return settings; }
+    public String compression() { return compression; }
+
+    /** The configuration as read, with every default filled in, for the run manifest. */
+    public ObjectNode resolvedForManifest(ObjectMapper m) {
+        ObjectNode n = m.createObjectNode();
+        n.put("origin", origin);
+        n.set("as_written", resolved);
+        ObjectNode s = n.putObject("physics_resolved");
+        DeriveSettings d = settings;
+        s.put("parallax_zero_point_mas", d.parallaxZeroPointMas());
+        s.put("parallax_snr_min", d.parallaxSnrMin());
+        s.put("parallax_max_mas", d.parallaxMaxMas());
+        s.put("distance_method", d.distanceMethod().name().toLowerCase());
+        s.put("prior_length_kpc", d.priorLengthKpc());
+        s.put("posterior_percentiles", d.posteriorPercentiles());
+        s.put("r_v", d.rv());
+        s.put("ebv_default", d.ebvDefault());
+        s.put("ebv_err_default", d.ebvErrDefault());
+        s.put("feh_default", d.fehDefault());
+        s.put("feh_err_default", d.fehErrDefault());
+        s.put("allow_extrapolation", d.allowExtrapolation());
+        s.put("teff_disagree_p", d.teffDisagreeP());
+        s.put("diameter_disagree_sigma", d.diameterDisagreeSigma());
+        s.put("giant_logg_prior", d.giantLoggPrior());
+        s.put("giant_logg_prior_err", d.giantLoggPriorErr());
+        s.put("mag_min", d.magMin());
+        s.put("mag_max", d.magMax());
+        s.put("parallax_unit", parallaxUnit.name().toLowerCase());
+        s.put("compression", compression);
+        return n;
+    }
+}

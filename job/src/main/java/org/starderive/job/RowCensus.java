@@ -1,0 +1,97 @@
+package org.starderive.job;
+
+import static org.apache.spark.sql.functions.coalesce;
+import static org.apache.spark.sql.functions.col;
+import static org.apache.spark.sql.functions.count;
+import static org.apache.spark.sql.functions.greatest;
+import static org.apache.spark.sql.functions.lit;
+import static org.apache.spark.sql.functions.shiftrightunsigned;
+import static org.apache.spark.sql.functions.sum;
+import static org.apache.spark.sql.functions.when;
+import static org.apache.spark.sql.functions.xxhash64;
+
+import java.util.ArrayList;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import org.apache.spark.sql.Column;
+import org.apache.spark.sql.Dataset;
+import org.apache.spark.sql.Row;
+import org.starderive.physics.QualityFlag;
+
+/**
+ * The multiset of star ids of a table, summarised so that two tables can be compared without collecting them:
+ * the row count and the sums of the low and high 32 bits of the 64-bit xxHash of each id (sums of non-negative
+ * 32-bit values: no overflow below 2·10⁹ rows). Equal multisets give equal summaries; a lost, added or changed row
+ * changes the summary except with probability about 2⁻⁶⁴. Null ids count too (they hash to a fixed value).
+ */
+public final class RowCensus {
+    public final long rows;
+    public final long hashLo;
+    public final long hashHi;
+
+    public RowCensus(long rows, long hashLo, long hashHi) {
+        this.rows = rows;
+        this.hashLo = hashLo;
+        this.hashHi = hashHi;
+    }
+
+    private static Column lo(Column id) { return xxhash64(id).bitwiseAND(lit(0xFFFFFFFFL)); }
+
+    private static Column hi(Column id) { return shiftrightunsigned(xxhash64(id), 32); }
+
+    static List<Column> aggregates(Column id) {
+        List<Column> a = new ArrayList<>();
+        a.add(count(lit(1)));
+        a.add(coalesce(sum(lo(id)), lit(0L)));
+        a.add(coalesce(sum(hi(id)), lit(0L)));
+        return a;
+    }
+
+    /** Census of one table. */
+    public static RowCensus of(Dataset<Row> d, String idColumn) {
+        List<Column> a = aggregates(col(idColumn));
+        Row r = d.agg(a.get(0), a.subList(1, a.size()).toArray(new Column[0])).first();
+        return new RowCensus(r.getLong(0), r.getLong(1), r.getLong(2));
+    }
+
+    /**
+     * Census the join policy must produce from two tables: max(k, j) copies of an id held k times in one and j
+     * times in the other.
+     */
+    public static RowCensus expectedJoin(Dataset<Row> a, Dataset<Row> p, String idColumn) {
+        Dataset<Row> ca = a.groupBy(col(idColumn)).agg(count(lit(1)).as("na"));
+        Dataset<Row> cp = p.groupBy(col(idColumn)).agg(count(lit(1)).as("np"));
+        Dataset<Row> j = ca.join(cp, ca.col(idColumn).eqNullSafe(cp.col(idColumn)), "full_outer")
+                .select(coalesce(ca.col(idColumn), cp.col(idColumn)).as("id"),
+                        greatest(coalesce(col("na"), lit(0L)), coalesce(col("np"), lit(0L))).as("n"));
+        Row r = j.agg(coalesce(sum(col("n")), lit(0L)),
+                coalesce(sum(col("n").multiply(lo(col("id")))), lit(0L)),
+                coalesce(sum(col("n").multiply(hi(col("id")))), lit(0L))).first();
+        return new RowCensus(r.getLong(0), r.getLong(1), r.getLong(2));
+    }
+
+    /** Census of the written output plus the number of rows carrying each flag, in one pass. */
+    public static Map.Entry<RowCensus, Map<String, Long>> ofOutput(Dataset<Row> out, String idColumn) {
+        List<Column> a = aggregates(col(idColumn));
+        QualityFlag[] flags = QualityFlag.values();
+        for (QualityFlag f : flags) {
+            a.add(coalesce(sum(when(col("flags").bitwiseAND(lit(f.mask())).notEqual(0), 1L).otherwise(0L)), lit(0L)));
+        }
+        Row r = out.agg(a.get(0), a.subList(1, a.size()).toArray(new Column[0])).first();
+        Map<String, Long> perFlag = new LinkedHashMap<>();
+        for (int i = 0; i < flags.length; i++) {
+            perFlag.put(flags[i].name(), r.getLong(3 + i));
+        }
+        return Map.entry(new RowCensus(r.getLong(0), r.getLong(1), r.getLong(2)), perFlag);
+    }
+
+    public boolean sameAs(RowCensus o) {
+        return rows == o.rows && hashLo == o.hashLo && hashHi == o.hashHi;
+    }
+
+    @Override
+    public String toString() {
+        return rows + " rows, id hash " + Long.toHexString(hashHi) + ":" + Long.toHexString(hashLo);
+    }
+}

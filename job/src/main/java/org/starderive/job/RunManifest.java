@@ -1,0 +1,104 @@
+package org.starderive.job;
+
+import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.SerializationFeature;
+import com.fasterxml.jackson.databind.node.ArrayNode;
+import com.fasterxml.jackson.databind.node.ObjectNode;
+import java.util.List;
+import java.util.Map;
+import org.starderive.physics.BolometricCorrectionFlower1996;
+import org.starderive.physics.CardelliClaytonMathis1989;
+import org.starderive.physics.Codata2018;
+import org.starderive.physics.Constant;
+import org.starderive.physics.DerivedConstants;
+import org.starderive.physics.GaiaBandExtinction;
+import org.starderive.physics.GaiaToJohnsonRiello2021;
+import org.starderive.physics.Iau2012;
+import org.starderive.physics.Iau2015;
+import org.starderive.physics.LuminosityClass;
+import org.starderive.physics.MassLuminosityEker2018;
+import org.starderive.physics.ParallaxDistance;
+import org.starderive.physics.SurfaceBrightnessKervella2004;
+import org.starderive.physics.TeffRelation;
+import org.starderive.physics.TeffRelations;
+
+/** The JSON manifest written beside the output: from it alone a reader can tell how the catalogue was made. */
+public final class RunManifest {
+    private RunManifest() {}
+
+    public static final String FILE_NAME = "_starderive_manifest.json";
+
+    public static String version() {
+        String v = RunManifest.class.getPackage().getImplementationVersion();
+        return v == null ? "development build" : v;
+    }
+
+    static ObjectNode methods(ObjectMapper m, JobConfig config) {
+        ObjectNode methods = m.createObjectNode();
+        ArrayNode rel = methods.putArray("colour_teff_relations");
+        long mask = config.settings().relationMask();
+        List<TeffRelation> all = TeffRelations.all();
+        for (int i = 0; i < all.size(); i++) {
+            if ((mask & (1L << i)) != 0) {
+                TeffRelation r = all.get(i);
+                ObjectNode n = rel.addObject();
+                n.put("id", r.id());
+                n.put("colour", r.colourName());
+                n.put("class", r.appliesTo().label());
+                n.put("colour_min", r.colourMin());
+                n.put("colour_max", r.colourMax());
+                n.put("feh_min", r.fehMin());
+                n.put("feh_max", r.fehMax());
+                n.put("scatter_k", r.scatterK());
+                n.put("citation", r.citation());
+            }
+        }
+        methods.put("distance", ParallaxDistance.CITATION);
+        methods.put("extinction", CardelliClaytonMathis1989.CITATION);
+        methods.put("extinction_gaia_bands", GaiaBandExtinction.CITATION);
+        methods.put("bolometric_correction", BolometricCorrectionFlower1996.CITATION);
+        methods.put("g_to_v", GaiaToJohnsonRiello2021.CITATION);
+        methods.put("mass_luminosity", MassLuminosityEker2018.CITATION);
+        methods.put("luminosity_class", LuminosityClass.CLASSING_CITATION);
+        methods.put("surface_brightness", SurfaceBrightnessKervella2004.CITATION);
+        methods.put("uncertainties", "first order (analytic), inputs treated as independent");
+        ArrayNode constants = methods.putArray("constants");
+        for (Constant c : new Constant[] {Iau2015.R_SUN, Iau2015.L_SUN, Iau2015.TEFF_SUN, Iau2015.GM_SUN, Iau2015.L0,
+                Iau2012.AU, Codata2018.SIGMA_SB, Codata2018.G, DerivedConstants.PARSEC, DerivedConstants.M_SUN,
+                DerivedConstants.MBOL_SUN, BolometricCorrectionFlower1996.MBOL_SUN_CONSTANT}) {
+            ObjectNode n = constants.addObject();
+            n.put("name", c.name());
+            n.put("value", c.value());
+            n.put("uncertainty", c.uncertainty());
+            n.put("unit", c.unit());
+            n.put("reference", c.reference());
+        }
+        return methods;
+    }
+
+    /** Renders the manifest. */
+    public static String render(DeriveJob.Request req, JobConfig config, Map<String, Object> facts, Map<String, Long> perFlag,
+                                Map<String, Double> seconds) {
+        ObjectMapper m = new ObjectMapper().enable(SerializationFeature.INDENT_OUTPUT);
+        ObjectNode root = m.createObjectNode();
+        root.put("tool", "starderive");
+        root.put("version", version());
+        facts.forEach((k, v) -> root.set(k, m.valueToTree(v)));
+        ObjectNode cmd = root.putObject("request");
+        cmd.set("input", m.valueToTree(req.input));
+        cmd.set("photometry", m.valueToTree(req.photometry));
+        cmd.put("input_format", req.inputFormat);
+        cmd.put("output_format", req.outputFormat);
+        cmd.put("write_mode", req.writeMode.label());
+        cmd.put("output", req.output);
+        root.set("config", config.resolvedForManifest(m));
+        root.set("methods", methods(m, config));
+        root.set("rows_per_flag", m.valueToTree(perFlag));
+        root.set("seconds", m.valueToTree(seconds));
+        try {
+            return m.writeValueAsString(root) + "\n";
+        } catch (Exception e) {
+            throw new IllegalStateException("manifest", e);
+        }
+    }
+}
