@@ -103,11 +103,11 @@ public final class DeriveJob {
         if (twoTables) {
             String aName = astro.role() + " " + astro.paths();
             if (!astro.data().schema().getFieldIndex(idColumn).isDefined()) {
-                throw JobException.input("Input " + aName + ": missing column '" + idColumn + "' (the star id to join on)");
+                throw JobException.input("Input " + aName + ": missing column '" + idColumn + "' (rule: the star id to join on must exist in both tables)");
             }
             if (!phot.data().schema().getFieldIndex(idColumn).isDefined()) {
                 throw JobException.input("Input " + phot.role() + " " + phot.paths() + ": missing column '" + idColumn
-                        + "' (the star id to join on)");
+                        + "' (rule: the star id to join on must exist in both tables)");
             }
             joined = pipeline.join(astro, phot);
             expected = RowCensus.expectedJoin(astro.data(), phot.data(), idColumn);
@@ -116,7 +116,7 @@ public final class DeriveJob {
             String name = astro.role() + " " + astro.paths();
             if (!astro.data().schema().getFieldIndex(idColumn).isDefined()) {
                 throw JobException.input("Input " + name + ": missing column '" + idColumn
-                        + "' (the star id; set columns.star_id in the config)");
+                        + "' (rule: the star id column must exist; set columns.star_id in the config)");
             }
             joined = pipeline.markDuplicates(astro.data(), name);
             expected = RowCensus.of(astro.data().select(col(idColumn)), idColumn);

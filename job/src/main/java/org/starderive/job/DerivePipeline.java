@@ -62,7 +62,7 @@ public final class DerivePipeline {
     public String idColumn() { return idColumn; }
 
     private static JobException missing(String table, String column, String what) {
-        return JobException.input("Input " + table + ": missing column '" + column + "' (" + what + ")");
+        return JobException.input("Input " + table + ": missing column '" + column + "' (rule: the column for " + what + " must exist)");
     }
 
     private static void requireNumeric(StructType schema, String table, String column, String what) {

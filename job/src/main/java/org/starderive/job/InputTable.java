@@ -74,7 +74,7 @@ public final class InputTable {
             try {
                 FileSystem fs = root.getFileSystem(conf);
                 if (!fs.exists(root)) {
-                    throw JobException.input("Input " + role + " " + p + ": path does not exist");
+                    throw JobException.input("Input " + role + " " + p + ": path does not exist (rule: every input path must exist)");
                 }
                 FileStatus st = fs.getFileStatus(root);
                 if (st.isFile()) {
@@ -111,7 +111,7 @@ public final class InputTable {
                     layoutExample.putIfAbsent(keys, f.getPath().toString());
                 }
             } catch (IOException e) {
-                throw JobException.input("Input " + role + " " + p + ": cannot be listed (" + e.getMessage() + ")");
+                throw JobException.input("Input " + role + " " + p + ": cannot be listed (" + e.getMessage() + ") (rule: every input path must be readable)");
             }
         }
         if (files.isEmpty()) {

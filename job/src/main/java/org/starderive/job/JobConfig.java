@@ -247,7 +247,7 @@ public final class JobConfig {
             String n = names.next();
             if (!allowed.contains(n)) {
                 throw JobException.config("Invalid config " + origin + ": unknown key '" + (path.isEmpty() ? n : path + "." + n)
-                        + "' (allowed here: " + new TreeSet<>(allowed) + ")");
+                        + "' (rule: only these keys are allowed here: " + new TreeSet<>(allowed) + ")");
             }
         }
     }

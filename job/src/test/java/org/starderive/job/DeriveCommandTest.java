@@ -1,0 +1,250 @@
+package org.starderive.job;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.sql.Connection;
+import java.sql.DriverManager;
+import java.sql.ResultSet;
+import java.sql.Statement;
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.stream.Collectors;
+import java.util.stream.Stream;
+import org.apache.spark.sql.Dataset;
+import org.apache.spark.sql.Row;
+import org.apache.spark.sql.RowFactory;
+import org.apache.spark.sql.SparkSession;
+import org.apache.spark.sql.types.DataTypes;
+import org.apache.spark.sql.types.StructType;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+import org.starderive.physics.Band;
+import org.starderive.physics.DeriveSettings;
+import org.starderive.physics.QualityFlag;
+import org.starderive.physics.StarDeriver;
+import org.starderive.physics.StarInput;
+import org.starderive.physics.StarResult;
+import org.starderive.testing.SharedSpark;
+
+class DeriveCommandTest {
+    @TempDir
+    Path tmp;
+
+    private final SparkSession spark = SharedSpark.spark();
+
+    private static StarInput toInput(Row r) {
+        StarInput in = new StarInput();
+        if (!r.isNullAt(2)) { in.hasParallax = true; in.parallaxMas = r.getDouble(2); }
+        if (!r.isNullAt(3)) { in.hasParallaxErr = true; in.parallaxErrMas = r.getDouble(3); }
+        Band[] bands = {Band.B, Band.V, Band.J, Band.KS};
+        for (int k = 0; k < bands.length; k++) {
+            int i = 4 + 2 * k;
+            if (!r.isNullAt(i)) { in.hasMag[bands[k].ordinal()] = true; in.mag[bands[k].ordinal()] = r.getDouble(i); }
+            if (!r.isNullAt(i + 1)) { in.hasMagErr[bands[k].ordinal()] = true; in.magErr[bands[k].ordinal()] = r.getDouble(i + 1); }
+        }
+        if (!r.isNullAt(12)) { in.hasEbv = true; in.ebv = r.getDouble(12); }
+        if (!r.isNullAt(13)) { in.hasFeh = true; in.feh = r.getDouble(13); }
+        return in;
+    }
+
+    private static Double box(double v) { return Double.isNaN(v) ? null : v; }
+
+    @Test
+    void partitionedParquetEndToEnd() throws Exception {
+        Path in = tmp.resolve("in");
+        Path out = tmp.resolve("out");
+        List<Row> rows = TestCatalogs.rows(60, 1000);
+        TestCatalogs.writeParquet(spark, rows, in);
+
+        CliRunner r = CliRunner.run("derive", "--input", in.toString(), "--output", out.toString());
+        assertEquals(0, r.exitCode, r.toString());
+        assertTrue(r.out.contains("60 rows in, 60 rows out"), r.out);
+
+        // partition layout kept
+        List<String> parts;
+        try (Stream<Path> s = Files.list(out)) {
+            parts = s.map(p -> p.getFileName().toString()).filter(n -> n.startsWith("tile=")).sorted().collect(Collectors.toList());
+        }
+        assertEquals(List.of("tile=0", "tile=1", "tile=2"), parts);
+        assertTrue(Files.exists(out.resolve(RunManifest.FILE_NAME)));
+        assertTrue(Files.exists(out.resolve(DataDictionary.FILE_NAME)));
+        try (Stream<Path> s = Files.list(tmp)) {
+            assertEquals(0, s.filter(p -> p.getFileName().toString().contains(".staging-")).count(), "no staging left");
+        }
+
+        // values equal the physics core's for the same rows (spark-testing-base comparison)
+        StarDeriver d = new StarDeriver(DeriveSettings.defaults());
+        List<Row> expected = new ArrayList<>();
+        for (Row row : rows) {
+            StarResult res = d.derive(toInput(row), new StarResult());
+            expected.add(RowFactory.create(row.getLong(0), box(res.distPc), box(res.teffK), box(res.lumLsun),
+                    box(res.radiusRsun), box(res.massMsun), res.flags));
+        }
+        StructType es = new StructType().add("star_id", DataTypes.LongType).add("dist_pc", DataTypes.DoubleType)
+                .add("teff_k", DataTypes.DoubleType).add("lum_lsun", DataTypes.DoubleType).add("radius_rsun", DataTypes.DoubleType)
+                .add("mass_msun", DataTypes.DoubleType).add("flags", DataTypes.LongType);
+        Dataset<Row> exp = spark.createDataFrame(expected, es).orderBy("star_id");
+        // same columns, schema without the unit metadata (checked separately below)
+        Dataset<Row> got = spark.createDataFrame(spark.read().parquet(out.toString())
+                .select("star_id", "dist_pc", "teff_k", "lum_lsun", "radius_rsun", "mass_msun", "flags").javaRDD(), es)
+                .orderBy("star_id");
+        SharedSpark.suite().assertDataFrameApproximateEquals(exp, got, 1e-9);
+
+        // units metadata survives in the Parquet schema (read back by Spark)
+        StructType back = spark.read().parquet(out.toString()).schema();
+        assertEquals("K", back.apply("teff_k").metadata().getString("unit"));
+        assertEquals("pos.distance", back.apply("dist_pc").metadata().getString("ucd"));
+
+        // independent reader: DuckDB
+        String glob = out.toString() + "/**/*.parquet";
+        try (Connection c = DriverManager.getConnection("jdbc:duckdb:"); Statement st = c.createStatement()) {
+            ResultSet rs = st.executeQuery("SELECT count(*), count(DISTINCT star_id) FROM read_parquet('" + glob + "', hive_partitioning = true)");
+            rs.next();
+            assertEquals(60, rs.getLong(1));
+            assertEquals(60, rs.getLong(2));
+            rs = st.executeQuery("DESCRIBE SELECT * FROM read_parquet('" + glob + "', hive_partitioning = true)");
+            Map<String, String> types = new HashMap<>();
+            while (rs.next()) {
+                types.put(rs.getString(1), rs.getString(2));
+            }
+            assertEquals("DOUBLE", types.get("teff_k"));
+            assertEquals("BIGINT", types.get("flags"));
+            assertEquals("VARCHAR[]", types.get("flag_names"));
+            assertTrue(types.containsKey("tile"));
+            rs = st.executeQuery("SELECT decode(value) FROM parquet_kv_metadata('" + glob + "') "
+                    + "WHERE decode(key) = 'org.apache.spark.sql.parquet.row.metadata' LIMIT 1");
+            assertTrue(rs.next(), "Spark schema with metadata in the Parquet footer");
+            String meta = rs.getString(1);
+            assertTrue(meta.contains("\"ucd\":\"phys.temperature.effective\"") && meta.contains("\"unit\":\"K\""), meta);
+            // every flag the job reported is what DuckDB counts
+            rs = st.executeQuery("SELECT count(*) FROM read_parquet('" + glob + "') WHERE flags & "
+                    + QualityFlag.MAGNITUDE_SENTINEL.mask() + " <> 0");
+            rs.next();
+            long sentinels = rs.getLong(1);
+            assertTrue(r.out.contains(String.format("MAGNITUDE_SENTINEL     %,d", sentinels)), r.out);
+        }
+        // the manifest names the relations used and the counts
+        String manifest = Files.readString(out.resolve(RunManifest.FILE_NAME));
+        assertTrue(manifest.contains("\"output_rows\" : 60") && manifest.contains("Casagrande et al. 2010"), manifest);
+    }
+
+    @Test
+    void csvInAndOut() throws Exception {
+        Path in = tmp.resolve("in.csv");
+        Path out = tmp.resolve("out");
+        TestCatalogs.frame(spark, TestCatalogs.rows(20, 1)).coalesce(1).write().option("header", "true").csv(in.toString());
+        CliRunner r = CliRunner.run("derive", "--input", in.toString(), "--input-format", "csv",
+                "--output", out.toString(), "--output-format", "csv");
+        assertEquals(0, r.exitCode, r.toString());
+        Dataset<Row> back = spark.read().option("header", "true").csv(out.toString());
+        assertEquals(20, back.count());
+        assertEquals(20, back.select("star_id").distinct().count());
+        assertTrue(List.of(back.columns()).contains("teff_k"));
+    }
+
+    @Test
+    void duplicatesAreKeptAndFlagged() {
+        Path in = tmp.resolve("in");
+        Path out = tmp.resolve("out");
+        List<Row> rows = new ArrayList<>(TestCatalogs.rows(10, 1));
+        rows.add(rows.get(2)); // exact duplicate row
+        rows.add(TestCatalogs.rows(10, 1).get(4)); // same id again
+        TestCatalogs.writeParquet(spark, rows, in);
+        CliRunner r = CliRunner.run("derive", "--input", in.toString(), "--output", out.toString());
+        assertEquals(0, r.exitCode, r.toString());
+        Dataset<Row> back = spark.read().parquet(out.toString());
+        assertEquals(12, back.count());
+        long dupRows = back.filter("flags & " + QualityFlag.DUPLICATE_ID.mask() + " <> 0").count();
+        assertEquals(4, dupRows);
+        assertTrue(back.filter("array_contains(flag_names, 'DUPLICATE_ID')").count() == 4);
+    }
+
+    @Test
+    void joinKeepsIdsFromEitherSideAndPairsRepeatsCopyByCopy() {
+        StructType as = new StructType().add("star_id", DataTypes.LongType).add("parallax_mas", DataTypes.DoubleType)
+                .add("parallax_err_mas", DataTypes.DoubleType);
+        StructType ps = new StructType().add("star_id", DataTypes.LongType).add("mag_v", DataTypes.DoubleType)
+                .add("mag_v_err", DataTypes.DoubleType).add("mag_ks", DataTypes.DoubleType).add("mag_ks_err", DataTypes.DoubleType);
+        List<Row> a = List.of(RowFactory.create(1L, 10.0, 0.1), RowFactory.create(2L, 5.0, 0.1), // 2: astrometry only
+                RowFactory.create(4L, 8.0, 0.1), RowFactory.create(4L, 8.1, 0.1), RowFactory.create(4L, 8.2, 0.1)); // 4 three times
+        List<Row> p = List.of(RowFactory.create(1L, 9.8, 0.01, 8.3, 0.02), RowFactory.create(3L, 12.0, 0.01, 10.5, 0.02), // 3: photometry only
+                RowFactory.create(4L, 11.0, 0.01, 9.5, 0.02), RowFactory.create(4L, 11.1, 0.01, 9.6, 0.02));
+        Path ain = tmp.resolve("astro");
+        Path pin = tmp.resolve("phot");
+        Path out = tmp.resolve("out");
+        spark.createDataFrame(a, as).write().parquet(ain.toString());
+        spark.createDataFrame(p, ps).write().parquet(pin.toString());
+        CliRunner r = CliRunner.run("derive", "--input", ain.toString(), "--photometry", pin.toString(),
+                "--join-on", "star_id", "--output", out.toString());
+        assertEquals(0, r.exitCode, r.toString());
+        Dataset<Row> back = spark.read().parquet(out.toString());
+        // 1 once, 2 once (no photometry), 3 once (no parallax), 4 max(3, 2) = 3 times
+        Map<Long, Long> counts = new HashMap<>();
+        for (Row row : back.groupBy("star_id").count().collectAsList()) {
+            counts.put(row.getLong(0), row.getLong(1));
+        }
+        assertEquals(Map.of(1L, 1L, 2L, 1L, 3L, 1L, 4L, 3L), counts);
+        Row three = back.filter("star_id = 3").first();
+        assertTrue(QualityFlag.PARALLAX_MISSING.isSet(three.getLong(three.fieldIndex("flags"))));
+        Row two = back.filter("star_id = 2").first();
+        assertTrue(QualityFlag.PHOTOMETRY_MISSING.isSet(two.getLong(two.fieldIndex("flags"))));
+        assertEquals(3, back.filter("star_id = 4 AND flags & " + QualityFlag.DUPLICATE_ID.mask() + " <> 0").count());
+        // every astrometry row is there exactly once: parallaxes of id 4 are 8.0, 8.1, 8.2
+        assertEquals(List.of(8.0, 8.1, 8.2), back.filter("star_id = 4").orderBy("parallax_mas").select("parallax_mas")
+                .collectAsList().stream().map(x -> x.getDouble(0)).collect(Collectors.toList()));
+        assertEquals(2, back.filter("star_id = 4 AND mag_v IS NOT NULL").count());
+    }
+
+    @Test
+    void replacePartitionsLeavesOtherPartitionsByteIdentical() throws Exception {
+        Path in = tmp.resolve("in");
+        Path out = tmp.resolve("out");
+        TestCatalogs.writeParquet(spark, TestCatalogs.rows(30, 1), in);
+        assertEquals(0, CliRunner.run("derive", "--input", in.toString(), "--output", out.toString()).exitCode);
+        Map<String, String> before = TestCatalogs.treeHash(out);
+
+        // reprocess tile 1 only, with changed data
+        Path in1 = tmp.resolve("in1");
+        List<Row> tile1 = TestCatalogs.rows(30, 1).stream().filter(x -> x.getInt(1) == 1).map(x -> {
+            Object[] v = new Object[x.length()];
+            for (int i = 0; i < v.length; i++) {
+                v[i] = x.get(i);
+            }
+            v[13] = -1.0; // new [Fe/H]
+            return RowFactory.create(v);
+        }).collect(Collectors.toList());
+        TestCatalogs.writeParquet(spark, tile1, in1);
+        CliRunner r = CliRunner.run("derive", "--input", in1.toString(), "--output", out.toString(), "--write-mode", "replace-partitions");
+        assertEquals(0, r.exitCode, r.toString());
+        assertTrue(r.out.contains("partitions replaced: [tile=1]"), r.out);
+        Map<String, String> after = TestCatalogs.treeHash(out);
+        for (String f : before.keySet()) {
+            if (f.startsWith("tile=0/") || f.startsWith("tile=2/")) {
+                assertEquals(before.get(f), after.get(f), f + " changed");
+            }
+        }
+        assertFalse(after.keySet().stream().filter(f -> f.startsWith("tile=1/")).anyMatch(before::containsKey),
+                "tile=1 files were replaced");
+        assertEquals(30, spark.read().parquet(out.toString()).count());
+        assertEquals(10, spark.read().parquet(out.toString()).filter("tile = 1 AND feh = -1.0").count());
+    }
+
+    @Test
+    void overwriteReplacesWholeAndRunsAreDeterministic() throws Exception {
+        Path in = tmp.resolve("in");
+        Path out = tmp.resolve("out");
+        TestCatalogs.writeParquet(spark, TestCatalogs.rows(25, 1), in);
+        assertEquals(0, CliRunner.run("derive", "--input", in.toString(), "--output", out.toString()).exitCode);
+        List<Row> first = spark.read().parquet(out.toString()).drop("flag_names").orderBy("star_id").collectAsList();
+        CliRunner r = CliRunner.run("derive", "--input", in.toString(), "--output", out.toString(), "--write-mode", "overwrite");
+        assertEquals(0, r.exitCode, r.toString());
+        List<Row> second = spark.read().parquet(out.toString()).drop("flag_names").orderBy("star_id").collectAsList();
+        assertEquals(first, second, "same input and config give the same output");
+    }
+}

@@ -1,0 +1,111 @@
+package org.starderive.job;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.io.File;
+import java.io.IOException;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.nio.file.Paths;
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.List;
+import java.util.concurrent.TimeUnit;
+import java.util.stream.Collectors;
+import java.util.stream.Stream;
+import org.apache.spark.sql.Row;
+import org.apache.spark.sql.SparkSession;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+import org.starderive.testing.SharedSpark;
+
+/**
+ * The packaged artefacts, run as users run them, in child JVMs:
+ * the local launcher with plain {@code java -jar} (no --add-opens on the command line: the manifest carries them),
+ * and the thin jar through Spark's own submit entry point (what {@code spark-submit} runs) with --master local[2]
+ * and Spark's jars from the project's own dependencies. Both outputs must equal each other row for row.
+ */
+class PackagedJarsIT {
+    @TempDir
+    Path tmp;
+
+    private static String prop(String k) {
+        String v = System.getProperty(k);
+        if (v == null) {
+            throw new IllegalStateException("system property " + k + " not set (run through mvn verify)");
+        }
+        return v;
+    }
+
+    private static String java() {
+        return Paths.get(System.getProperty("java.home"), "bin", "java").toString();
+    }
+
+    /** Spark and its dependencies from target/lib, without our own jars and libraries (those are in the thin jar). */
+    private static String sparkClasspath() throws IOException {
+        try (Stream<Path> s = Files.list(Paths.get(prop("starderive.lib")))) {
+            return s.map(Path::toString)
+                    .filter(p -> !p.contains("starderive-") && !p.contains("picocli") && !p.contains("jackson-dataformat-yaml"))
+                    .sorted().collect(Collectors.joining(File.pathSeparator));
+        }
+    }
+
+    private static int run(List<String> cmd, Path log) throws Exception {
+        ProcessBuilder pb = new ProcessBuilder(cmd).redirectErrorStream(true).redirectOutput(log.toFile());
+        pb.environment().put("SPARK_SCALA_VERSION", "2.12");
+        Process p = pb.start();
+        if (!p.waitFor(5, TimeUnit.MINUTES)) {
+            p.destroyForcibly();
+            throw new AssertionError("timed out: " + cmd);
+        }
+        return p.exitValue();
+    }
+
+    @Test
+    void localLauncherAndSparkSubmitGiveTheSameCatalogue() throws Exception {
+        SparkSession spark = SharedSpark.spark();
+        Path in = tmp.resolve("in");
+        TestCatalogs.writeParquet(spark, TestCatalogs.rows(40, 1), in);
+
+        Path outLocal = tmp.resolve("out-local");
+        Path logLocal = tmp.resolve("local.log");
+        int a = run(List.of(java(), "-jar", prop("starderive.localJar"), "derive", "--master", "local[2]",
+                "--input", in.toString(), "--output", outLocal.toString()), logLocal);
+        String la = Files.readString(logLocal, StandardCharsets.UTF_8);
+        assertEquals(0, a, la);
+        assertTrue(la.contains("40 rows in, 40 rows out"), la);
+        assertTrue(!la.contains(" INFO SparkContext"), "quiet by default: " + la);
+
+        Path outSubmit = tmp.resolve("out-submit");
+        Path logSubmit = tmp.resolve("submit.log");
+        List<String> cmd = new ArrayList<>();
+        cmd.add(java());
+        cmd.addAll(Arrays.asList(prop("starderive.javaOpens").trim().split("\\s+")));
+        cmd.addAll(List.of("-cp", sparkClasspath(), "org.apache.spark.deploy.SparkSubmit", "--master", "local[2]",
+                "--class", "org.starderive.job.Main", prop("starderive.thinJar"),
+                "derive", "--input", in.toString(), "--output", outSubmit.toString()));
+        int b = run(cmd, logSubmit);
+        String lb = Files.readString(logSubmit, StandardCharsets.UTF_8);
+        assertEquals(0, b, lb);
+        assertTrue(lb.contains("40 rows in, 40 rows out"), lb);
+
+        List<Row> x = spark.read().parquet(outLocal.toString()).drop("flag_names").orderBy("star_id").collectAsList();
+        List<Row> y = spark.read().parquet(outSubmit.toString()).drop("flag_names").orderBy("star_id").collectAsList();
+        assertEquals(40, x.size());
+        assertEquals(x, y);
+    }
+
+    @Test
+    void helpExplainsEveryOptionWithItsDefault() throws Exception {
+        Path log = tmp.resolve("help.log");
+        assertEquals(0, run(List.of(java(), "-jar", prop("starderive.localJar"), "derive", "--help"), log));
+        String h = Files.readString(log).replaceAll("\\s+", " ");
+        for (String opt : List.of("--input", "--output", "--photometry", "--join-on", "--config", "--input-format",
+                "--output-format", "--write-mode", "--master")) {
+            assertTrue(h.contains(opt), opt + " in help: " + h);
+        }
+        assertTrue(h.contains("Default: fail") && h.contains("Default: parquet"), h);
+    }
+}

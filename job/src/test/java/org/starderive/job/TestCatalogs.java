@@ -1,0 +1,94 @@
+package org.starderive.job;
+
+import java.io.IOException;
+import java.io.UncheckedIOException;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.security.MessageDigest;
+import java.util.ArrayList;
+import java.util.HexFormat;
+import java.util.List;
+import java.util.TreeMap;
+import java.util.stream.Stream;
+import org.apache.spark.sql.Dataset;
+import org.apache.spark.sql.Row;
+import org.apache.spark.sql.RowFactory;
+import org.apache.spark.sql.SparkSession;
+import org.apache.spark.sql.types.DataTypes;
+import org.apache.spark.sql.types.StructType;
+
+/**
+ * Small hand-made test catalogues (invented values, test data only): solar-type stars at a range of distances with
+ * a few hostile rows, in the canonical schema, partitioned by a sky tile.
+ */
+final class TestCatalogs {
+    private TestCatalogs() {}
+
+    static StructType schema() {
+        return new StructType()
+                .add("star_id", DataTypes.LongType, false)
+                .add("tile", DataTypes.IntegerType, false)
+                .add("parallax_mas", DataTypes.DoubleType, true)
+                .add("parallax_err_mas", DataTypes.DoubleType, true)
+                .add("mag_b", DataTypes.DoubleType, true)
+                .add("mag_b_err", DataTypes.DoubleType, true)
+                .add("mag_v", DataTypes.DoubleType, true)
+                .add("mag_v_err", DataTypes.DoubleType, true)
+                .add("mag_j", DataTypes.DoubleType, true)
+                .add("mag_j_err", DataTypes.DoubleType, true)
+                .add("mag_ks", DataTypes.DoubleType, true)
+                .add("mag_ks_err", DataTypes.DoubleType, true)
+                .add("ebv", DataTypes.DoubleType, true)
+                .add("feh", DataTypes.DoubleType, true);
+    }
+
+    /** n stars over 3 tiles; every 7th row carries a defect. */
+    static List<Row> rows(int n, long idOffset) {
+        List<Row> rows = new ArrayList<>();
+        for (int i = 0; i < n; i++) {
+            double distPc = 10 + 25 * i;
+            double plx = 1000 / distPc;
+            double mu = 5 * Math.log10(distPc / 10);
+            double v = 4.81 + mu + 0.02 * (i % 5);
+            Double vv = v;
+            Double plxv = plx;
+            Double bv = v + 0.653;
+            switch (i % 7) {
+                case 3: vv = 99.99; break;          // sentinel
+                case 5: plxv = null; break;         // no parallax
+                case 6: bv = Double.NaN; break;     // NaN
+                default: break;
+            }
+            rows.add(RowFactory.create(idOffset + i, i % 3, plxv, 0.02 + 0.001 * i, bv, 0.01, vv, 0.01,
+                    v - 1.544 + 0.362, 0.02, v - 1.544, 0.02, i % 4 == 0 ? null : 0.01 * (i % 4), i % 2 == 0 ? 0.0 : -0.3));
+        }
+        return rows;
+    }
+
+    static Dataset<Row> frame(SparkSession spark, List<Row> rows) {
+        return spark.createDataFrame(rows, schema());
+    }
+
+    static void writeParquet(SparkSession spark, List<Row> rows, Path dir) {
+        frame(spark, rows).repartition(2).write().partitionBy("tile").parquet(dir.toString());
+    }
+
+    /** SHA-256 of every file under dir, by relative path: equal maps mean byte-identical trees. */
+    static TreeMap<String, String> treeHash(Path dir) {
+        TreeMap<String, String> m = new TreeMap<>();
+        if (!Files.exists(dir)) {
+            return m;
+        }
+        try (Stream<Path> s = Files.walk(dir)) {
+            for (Path p : (Iterable<Path>) s.filter(Files::isRegularFile)::iterator) {
+                MessageDigest md = MessageDigest.getInstance("SHA-256");
+                m.put(dir.relativize(p).toString(), HexFormat.of().formatHex(md.digest(Files.readAllBytes(p))));
+            }
+        } catch (IOException e) {
+            throw new UncheckedIOException(e);
+        } catch (Exception e) {
+            throw new IllegalStateException(e);
+        }
+        return m;
+    }
+}
