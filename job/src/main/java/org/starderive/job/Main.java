@@ -17,7 +17,7 @@ import picocli.CommandLine.Option;
 @Command(name = "starderive", mixinStandardHelpOptions = true, versionProvider = Main.Version.class,
         description = "Derived stellar parameters (distance, Teff, L, R, M, log g, angular diameter) with uncertainties and "
                 + "quality flags for survey catalogues, as an Apache Spark batch job.",
-        subcommands = {Main.Derive.class, CommandLine.HelpCommand.class})
+        subcommands = {Main.Derive.class, Main.Sample.class, CommandLine.HelpCommand.class})
 public final class Main implements Runnable {
 
     @CommandLine.Spec
@@ -99,6 +99,70 @@ public final class Main implements Runnable {
                 PrintWriter out = spec.commandLine().getOut();
                 out.print(s.render());
                 out.flush();
+                return 0;
+            });
+        }
+    }
+
+    @Command(name = "sample", mixinStandardHelpOptions = true, sortOptions = false,
+            description = "Generate the synthetic Kestrel survey (a fictional survey: astrometry, photometry and truth "
+                    + "tables, Parquet partitioned by sky tile), deterministically from a seed.")
+    static final class Sample implements Callable<Integer> {
+        @CommandLine.Spec
+        CommandLine.Model.CommandSpec spec;
+
+        @Option(names = "--stars", required = true, paramLabel = "N", description = "Number of stars (exact).")
+        long stars;
+
+        @Option(names = "--seed", defaultValue = "1", paramLabel = "S", description = "Random seed. Default: ${DEFAULT-VALUE}.")
+        long seed;
+
+        @Option(names = "--out", required = true, paramLabel = "DIR", description = "Folder for astrometry/, photometry/ and truth/.")
+        String out;
+
+        @Option(names = "--partitions", paramLabel = "P",
+                description = "Spark partitions for generation. Default: one per 250,000 stars, at least 2.")
+        Integer partitions;
+
+        @Option(names = "--overwrite", description = "Replace the tables if they exist. Default: refuse.")
+        boolean overwrite;
+
+        @CommandLine.Mixin
+        SparkOptionsMixin spark = new SparkOptionsMixin();
+
+        @Override
+        public Integer call() {
+            if (!(stars > 0)) {
+                throw JobException.config("Invalid --stars: " + stars + " (must be > 0)");
+            }
+            int p = partitions != null ? partitions : (int) Math.max(2, Math.min(10_000, stars / 250_000));
+            if (p < 1) {
+                throw JobException.config("Invalid --partitions: " + p + " (must be >= 1)");
+            }
+            return Sessions.withSession(spark.master, "starderive sample", session -> {
+                long t0 = System.nanoTime();
+                if (!overwrite) {
+                    for (String t : List.of("astrometry", "photometry", "truth")) {
+                        try {
+                            org.apache.hadoop.fs.Path tp = new org.apache.hadoop.fs.Path(out, t);
+                            if (tp.getFileSystem(session.sparkContext().hadoopConfiguration()).exists(tp)) {
+                                throw JobException.output("Output " + tp + " already exists (rule: sample never replaces "
+                                        + "tables unless --overwrite is given)");
+                            }
+                        } catch (java.io.IOException e) {
+                            throw JobException.output("Output " + out + ": not reachable (" + e.getMessage() + ")");
+                        }
+                    }
+                }
+                org.starderive.sample.SampleSurvey.write(session, stars, seed, out, p,
+                        overwrite ? org.apache.spark.sql.SaveMode.Overwrite : org.apache.spark.sql.SaveMode.ErrorIfExists);
+                double sec = (System.nanoTime() - t0) / 1e9;
+                PrintWriter w = spec.commandLine().getOut();
+                w.printf("starderive sample: %,d stars (seed %d) in %.1f s (%,.0f stars/s)%n", stars, seed, sec, stars / sec);
+                w.println("astrometry: " + out + "/astrometry");
+                w.println("photometry: " + out + "/photometry");
+                w.println("truth:      " + out + "/truth");
+                w.flush();
                 return 0;
             });
         }

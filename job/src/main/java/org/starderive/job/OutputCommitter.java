@@ -13,7 +13,7 @@ import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
 /**
- * Writes go to a staging folder beside the output ({@code .NAME.staging-RUNID}, same file system) and are moved
+ * Writes go to a staging folder beside the output ({@code NAME.staging-RUNID}, same file system) and are moved
  * into place only after the whole output has been written and checked:
  * <ul>
  *   <li>{@code fail}: the output must not exist; the staging folder is renamed to it;</li>
@@ -24,7 +24,7 @@ import org.slf4j.LoggerFactory;
  *       one by one; every other partition is left untouched (same files, same bytes).</li>
  * </ul>
  * A run that fails or is killed before the commit leaves the output as it was (the staging folder is deleted on a
- * clean failure and ignored by readers otherwise: its name starts with a dot). On object stores without atomic
+ * clean failure; after a kill it stays beside the output under its own name and is never read as the output). On object stores without atomic
  * rename (S3) the rename is a copy: the guarantee then holds only per file.
  */
 public final class OutputCommitter {
@@ -65,7 +65,8 @@ public final class OutputCommitter {
         if (this.output.getParent() == null) {
             throw JobException.output("Output " + output + ": must not be a file-system root");
         }
-        this.staging = new Path(this.output.getParent(), "." + this.output.getName() + ".staging-" + runId);
+        // not hidden: Spark's readers skip paths that start with '.' or '_', and the job reads the staging folder back
+        this.staging = new Path(this.output.getParent(), this.output.getName() + ".staging-" + runId);
     }
 
     public Path output() { return output; }

@@ -22,12 +22,18 @@ public enum QualityFlag {
     MAGNITUDE_SENTINEL(5, "a magnitude is a sentinel value (outside the plausible range) and was ignored"),
     /** A value is NaN/infinite, or an error is not positive, or a value is out of its physical domain. */
     INPUT_INVALID(6, "an input value or error is NaN, infinite, non-positive where it must be positive, or unphysical; it was ignored"),
-    /** Colours available, but none inside a relation's calibrated range: no Teff (or an extrapolated one). */
-    COLOUR_OUT_OF_RANGE(7, "colours available but outside every calibrated range: no Teff unless extrapolation is allowed"),
+    /**
+     * At least one available colour lies outside its relation's calibrated range (that relation is not used). With no
+     * colour in range there is no Teff (unless extrapolation is allowed).
+     */
+    COLOUR_OUT_OF_RANGE(7, "a colour lies outside its relation's calibrated range and was not used; with none in range, no Teff"),
     /** Teff extrapolated outside a relation's calibrated range (only when extrapolation is switched on). */
     TEFF_EXTRAPOLATED(8, "Teff extrapolated beyond a relation's calibrated range"),
-    /** The in-range Teff estimates from several colours disagree beyond their errors (chi-square test). */
-    TEFF_COLOURS_DISAGREE(9, "Teff from different colours disagree beyond their errors (chi-square test)"),
+    /**
+     * The in-range Teff estimates disagree beyond their errors (chi-square test), or a colour beyond a calibrated edge
+     * says the star is hotter/cooler than the in-range estimates allow.
+     */
+    TEFF_COLOURS_DISAGREE(9, "Teff from different colours disagree beyond their errors, or an out-of-range colour contradicts it"),
     /** Bolometric correction outside its calibration or known to be poor (dwarfs cooler than 4000 K). */
     BC_UNRELIABLE(10, "bolometric correction outside its calibration or poor (dwarfs below 4000 K)"),
     /** No E(B−V) for this row: the configured default (0 unless set) was used. */

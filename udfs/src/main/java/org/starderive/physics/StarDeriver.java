@@ -87,6 +87,9 @@ public final class StarDeriver {
     private boolean tAnyColour;
     private boolean tExtrapolated;
     private boolean tUsesLogg;
+    private boolean tAnyOutOfRange;
+    private boolean tBoundBroken;
+    private final double[] gradBand = new double[Band.COUNT];
     // chain state
     private double sMbol;
 
@@ -189,9 +192,12 @@ public final class StarDeriver {
             }
         } else {
             if (tExtrapolated) {
-                flags |= TEFF_EXTRAPOLATED.mask() | COLOUR_OUT_OF_RANGE.mask();
+                flags |= TEFF_EXTRAPOLATED.mask();
             }
-            if (tCount >= 2 && tChi2 > settings.teffDisagreeChi2(tCount - 1)) {
+            if (tAnyOutOfRange) {
+                flags |= COLOUR_OUT_OF_RANGE.mask();
+            }
+            if ((tCount >= 2 && tChi2 > settings.teffDisagreeChi2(tCount - 1)) || tBoundBroken) {
                 flags |= TEFF_COLOURS_DISAGREE.mask();
             }
             if (!classKnown) {
@@ -413,12 +419,24 @@ public final class StarDeriver {
         estimateTeff(LuminosityClass.EVOLVED, settings.giantLoggPrior(), settings.giantLoggPriorErr());
         if (tCount == 0) {
             boolean anyGiantColour = tAnyColour;
+            boolean anyGiantOut = tAnyOutOfRange;
             estimateTeff(LuminosityClass.MAIN_SEQUENCE, settings.giantLoggPrior(), settings.giantLoggPriorErr());
             tAnyColour |= anyGiantColour;
+            tAnyOutOfRange |= anyGiantOut;
         }
     }
 
-    /** Inverse-variance mean of the Teff of every usable relation of class {@code cls}. */
+    /**
+     * Inverse-variance mean of the Teff of every usable relation of class {@code cls}.
+     *
+     * <p>Weights: w_i = 1 / (σ_rel,i² + (∂T_i/∂X_i)² σ_X,i²). The error of the mean is propagated to first order
+     * through every shared input, not averaged down as if the colours were independent: the gradient of the mean
+     * with respect to each band magnitude (a band appears in several colours), E(B−V), [Fe/H] and log g is
+     * accumulated, and σ²(T̄) = Σ_b (∂T̄/∂m_b)² σ_b² + (∂T̄/∂E)² σ_E² + (∂T̄/∂[Fe/H])² σ_[Fe/H]² + (∂T̄/∂log g)² σ_g²
+     * + Σ_i (w_i/W)² σ_rel,i² + zero point². Colours outside a relation's range are not used, but a colour beyond an
+     * edge by more than twice its error bounds Teff (redder than the red edge: cooler than that edge's Teff); an
+     * in-range mean that breaks such a bound is flagged as a disagreement.
+     */
     private void estimateTeff(LuminosityClass cls, double logg, double sLogg) {
         double sumW = 0;
         double sumWT = 0;
@@ -426,8 +444,16 @@ public final class StarDeriver {
         int n = 0;
         long mask = 0;
         boolean anyColour = false;
+        boolean anyOut = false;
         boolean extrapolated = false;
         boolean usesLogg = false;
+        double tUpper = Double.POSITIVE_INFINITY;
+        double tLower = 0;
+        java.util.Arrays.fill(gradBand, 0);
+        double gEbv = 0;
+        double gFeh = 0;
+        double gLogg = 0;
+        double scatterVar = 0;
         for (int k = 0; k < relations.length; k++) {
             TeffRelation r = relations[k];
             if (r.appliesTo() != cls) {
@@ -440,25 +466,37 @@ public final class StarDeriver {
             }
             anyColour = true;
             double x = m0[bi] - m0[ri];
+            double sx2 = sm[bi] * sm[bi] + sm[ri] * sm[ri] + sq((rBand[bi] - rBand[ri]) * sEbv);
             boolean in = r.inRange(x, feh);
-            if (!in && !settings.allowExtrapolation()) {
-                continue;
+            if (!in) {
+                anyOut = true;
+                double margin = 2 * Math.sqrt(sx2);
+                if (x > r.colourMax() + margin) {
+                    tUpper = Math.min(tUpper, r.teff(r.colourMax(), feh, logg));
+                } else if (x < r.colourMin() - margin) {
+                    tLower = Math.max(tLower, r.teff(r.colourMin(), feh, logg));
+                }
+                if (!settings.allowExtrapolation()) {
+                    continue;
+                }
             }
             double t = r.teff(x, feh, logg);
             if (!(t >= TEFF_SANE_MIN_K && t <= TEFF_SANE_MAX_K)) {
                 continue;
             }
-            double sx2 = sm[bi] * sm[bi] + sm[ri] * sm[ri] + sq((rBand[bi] - rBand[ri]) * sEbv);
-            double var = sq(r.dTeffDColour(x, feh, logg)) * sx2
-                    + sq(r.dTeffDFeh(x, feh, logg) * sFeh)
-                    + sq(r.dTeffDLogg(x, feh) * sLogg)
-                    + sq(r.scatterK());
-            double w = 1 / var;
+            double dx = r.dTeffDColour(x, feh, logg);
+            double w = 1 / (dx * dx * sx2 + sq(r.scatterK()));
             tEst[n] = t;
             wEst[n] = w;
             n++;
             sumW += w;
             sumWT += w * t;
+            gradBand[bi] += w * dx;
+            gradBand[ri] -= w * dx;
+            gEbv -= w * dx * (rBand[bi] - rBand[ri]);
+            gFeh += w * r.dTeffDFeh(x, feh, logg);
+            gLogg += w * r.dTeffDLogg(x, feh);
+            scatterVar += w * w * sq(r.scatterK());
             zp = Math.max(zp, r.zeroPointK());
             mask |= 1L << relationIndex[k];
             extrapolated |= !in;
@@ -466,20 +504,29 @@ public final class StarDeriver {
         }
         tCount = n;
         tAnyColour = anyColour;
+        tAnyOutOfRange = anyOut;
         tExtrapolated = extrapolated;
         tUsesLogg = usesLogg;
         tMask = mask;
+        tBoundBroken = false;
         if (n == 0) {
             tMean = tErr = tChi2 = Double.NaN;
             return;
         }
         tMean = sumWT / sumW;
-        tErr = Math.sqrt(1 / sumW + zp * zp);
+        double var = scatterVar + sq(gEbv * sEbv) + sq(gFeh * sFeh) + sq(gLogg * sLogg);
+        for (int b = 0; b < Band.COUNT; b++) {
+            if (gradBand[b] != 0) {
+                var += sq(gradBand[b] * sm[b]);
+            }
+        }
+        tErr = Math.sqrt(var / (sumW * sumW) + zp * zp);
         double chi2 = 0;
         for (int i = 0; i < n; i++) {
             chi2 += wEst[i] * sq(tEst[i] - tMean);
         }
         tChi2 = chi2;
+        tBoundBroken = tMean > tUpper + 2 * tErr || tMean < tLower - 2 * tErr;
     }
 
     /** BC, bolometric magnitudes, L, R and angular diameter from the current Teff estimate. */

@@ -199,6 +199,64 @@ class StarDeriverTest {
     }
 
     @Test
+    void aColourBeyondTheRedEdgeBoundsTeffAndFlagsAnInRangeEstimateAboveIt() {
+        // an M dwarf: V-Ks = 4.9 is redder than the C10 V-Ks range (<= 3.15), J-Ks = 0.78 is just inside its range
+        // and on its own would say ~4200 K; the V-Ks edge says cooler than ~4270 K only, so no contradiction yet ...
+        StarInput in = new StarInput().parallax(100, 0.05).magnitude(Band.V, 14.0, 0.01).magnitude(Band.KS, 9.1, 0.01)
+                .magnitude(Band.J, 9.88, 0.01).ebv(0, 0).feh(0, 0.1);
+        StarResult r = deriver.derive(in, out);
+        assertTrue(r.has(COLOUR_OUT_OF_RANGE), QualityFlag.names(r.flags).toString());
+        assertEquals("C10/J-Ks", r.teffFrom());
+        // ... but a B-V of 1.60 (C10 red edge 1.29, about 4300 K) with a J-Ks that says 6000 K is a contradiction
+        StarInput hot = new StarInput().parallax(100, 0.05).magnitude(Band.B, 15.6, 0.01).magnitude(Band.V, 14.0, 0.01)
+                .magnitude(Band.KS, 12.7, 0.01).magnitude(Band.J, 13.0, 0.01).ebv(0, 0).feh(0, 0.1);
+        r = deriver.derive(hot, out);
+        assertTrue(r.has(COLOUR_OUT_OF_RANGE) && r.has(TEFF_COLOURS_DISAGREE), QualityFlag.names(r.flags).toString());
+    }
+
+    @Test
+    void errorOfTheMeanCarriesASharedExtinctionErrorInFull() {
+        // photometry nearly exact, [Fe/H] known, only E(B-V) uncertain (0.30 +- 0.03): every colour shifts together,
+        // so the mean over five colours cannot average this error down. Reference: the spread of the deriver's own
+        // mean Teff over E(B-V) drawn from N(0.30, 0.03) (reddened magnitudes fixed, as observed).
+        double ebv0 = 0.3;
+        double sEbv = 0.03;
+        StarInput in = solarTwinAt10pc();
+        for (Band b : new Band[] {Band.V, Band.B, Band.IC, Band.KS, Band.J}) {
+            in.mag[b.ordinal()] += 3.1 * ebv0 * CardelliClaytonMathis1989.bandOverAv(b, 3.1);
+        }
+        for (int b = 0; b < Band.COUNT; b++) {
+            in.magErr[b] = 1e-4;
+        }
+        in.feh(0, 0);
+        in.ebv(ebv0, sEbv);
+        StarResult r = deriver.derive(in, new StarResult());
+        java.util.SplittableRandom rnd = new java.util.SplittableRandom(5);
+        double sum = 0;
+        double sum2 = 0;
+        int n = 4000;
+        StarResult tmp = new StarResult();
+        for (int i = 0; i < n; i++) {
+            double z = Math.sqrt(-2 * Math.log(1 - rnd.nextDouble())) * Math.cos(2 * Math.PI * rnd.nextDouble());
+            in.ebv = ebv0 + sEbv * z;
+            double t = deriver.derive(in, tmp).teffK;
+            sum += t;
+            sum2 += t * t;
+        }
+        double mcSd = Math.sqrt(sum2 / n - sq(sum / n));
+        // the relations' own scatter enters as 1 / sum(1/sigma_i^2) (weights are 1/sigma^2 here), plus the 15 K zero point
+        double invW = 0;
+        for (String id : r.teffFrom().split(",")) {
+            invW += 1 / sq(TeffRelations.byId(id).scatterK());
+        }
+        double expected = Math.sqrt(sq(mcSd) + 1 / invW + sq(15));
+        assertTrue(mcSd > 50, "the extinction term dominates here: " + mcSd);
+        assertEquals(expected, r.teffErrK, 0.1 * expected, "mc sd " + mcSd);
+    }
+
+    private static double sq(double x) { return x * x; }
+
+    @Test
     void coolDwarfFromGaiaBandsGetsVFromGAndAnUnreliableBc() {
         // an M dwarf at 20 pc with only G, BP, RP: BP-RP = 2.0 (Casagrande et al. 2021 dwarf limit)
         StarInput in = new StarInput().parallax(50, 0.05).magnitude(Band.G, 10.0, 0.003)
