@@ -17,7 +17,7 @@ import picocli.CommandLine.Option;
 @Command(name = "starderive", mixinStandardHelpOptions = true, versionProvider = Main.Version.class,
         description = "Derived stellar parameters (distance, Teff, L, R, M, log g, angular diameter) with uncertainties and "
                 + "quality flags for survey catalogues, as an Apache Spark batch job.",
-        subcommands = {Main.Derive.class, Main.Sample.class, CommandLine.HelpCommand.class})
+        subcommands = {Main.Derive.class, Main.Sample.class, Main.Rewrite.class, CommandLine.HelpCommand.class})
 public final class Main implements Runnable {
 
     @CommandLine.Spec
@@ -127,6 +127,10 @@ public final class Main implements Runnable {
         @Option(names = "--overwrite", description = "Replace the tables if they exist. Default: refuse.")
         boolean overwrite;
 
+        @Option(names = "--single-table",
+                description = "Write astrometry and photometry as one table stars/ (plus truth/) instead of two.")
+        boolean singleTable;
+
         @CommandLine.Mixin
         SparkOptionsMixin spark = new SparkOptionsMixin();
 
@@ -142,7 +146,7 @@ public final class Main implements Runnable {
             return Sessions.withSession(spark.master, "starderive sample", session -> {
                 long t0 = System.nanoTime();
                 if (!overwrite) {
-                    for (String t : List.of("astrometry", "photometry", "truth")) {
+                    for (String t : singleTable ? List.of("stars", "truth") : List.of("astrometry", "photometry", "truth")) {
                         try {
                             org.apache.hadoop.fs.Path tp = new org.apache.hadoop.fs.Path(out, t);
                             if (tp.getFileSystem(session.sparkContext().hadoopConfiguration()).exists(tp)) {
@@ -154,15 +158,64 @@ public final class Main implements Runnable {
                         }
                     }
                 }
-                org.starderive.sample.SampleSurvey.write(session, stars, seed, out, p,
-                        overwrite ? org.apache.spark.sql.SaveMode.Overwrite : org.apache.spark.sql.SaveMode.ErrorIfExists);
+                org.apache.spark.sql.SaveMode mode = overwrite ? org.apache.spark.sql.SaveMode.Overwrite
+                        : org.apache.spark.sql.SaveMode.ErrorIfExists;
+                if (singleTable) {
+                    org.starderive.sample.SampleSurvey.writeSingle(session, stars, seed, out, p, mode);
+                } else {
+                    org.starderive.sample.SampleSurvey.write(session, stars, seed, out, p, mode);
+                }
                 double sec = (System.nanoTime() - t0) / 1e9;
                 PrintWriter w = spec.commandLine().getOut();
                 w.printf("starderive sample: %,d stars (seed %d) in %.1f s (%,.0f stars/s)%n", stars, seed, sec, stars / sec);
-                w.println("astrometry: " + out + "/astrometry");
-                w.println("photometry: " + out + "/photometry");
+                if (singleTable) {
+                    w.println("stars:      " + out + "/stars");
+                } else {
+                    w.println("astrometry: " + out + "/astrometry");
+                    w.println("photometry: " + out + "/photometry");
+                }
                 w.println("truth:      " + out + "/truth");
                 w.flush();
+                return 0;
+            });
+        }
+    }
+
+    @Command(name = "rewrite", hidden = true, mixinStandardHelpOptions = true,
+            description = "Benchmark helper: read a Parquet table and write it again with the same partitioning and "
+                    + "compression (the I/O floor of a derive run).")
+    static final class Rewrite implements Callable<Integer> {
+        @CommandLine.Spec
+        CommandLine.Model.CommandSpec spec;
+
+        @Option(names = "--input", required = true, paramLabel = "PATH")
+        String input;
+
+        @Option(names = "--output", required = true, paramLabel = "PATH")
+        String output;
+
+        @Option(names = "--partition-by", split = ",", paramLabel = "COL")
+        List<String> partitionBy = new ArrayList<>();
+
+        @Option(names = "--compression", defaultValue = "snappy", paramLabel = "CODEC")
+        String compression;
+
+        @CommandLine.Mixin
+        SparkOptionsMixin spark = new SparkOptionsMixin();
+
+        @Override
+        public Integer call() {
+            return Sessions.withSession(spark.master, "starderive rewrite", session -> {
+                long t0 = System.nanoTime();
+                org.apache.spark.sql.DataFrameWriter<org.apache.spark.sql.Row> w = session.read().parquet(input).write()
+                        .mode(org.apache.spark.sql.SaveMode.ErrorIfExists).option("compression", compression);
+                if (!partitionBy.isEmpty()) {
+                    w = w.partitionBy(partitionBy.toArray(new String[0]));
+                }
+                w.parquet(output);
+                PrintWriter o = spec.commandLine().getOut();
+                o.printf("starderive rewrite: %.1f s%n", (System.nanoTime() - t0) / 1e9);
+                o.flush();
                 return 0;
             });
         }

@@ -134,6 +134,19 @@ public final class SampleSurvey {
         write(stars.selectExpr(truthColumns().toArray(new String[0])), out + "/" + TRUTH, mode);
     }
 
+    /** One table {@code stars/} with astrometry and photometry columns, plus {@code truth/}. */
+    public static void writeSingle(SparkSession spark, long n, long seed, String out, int partitions, SaveMode mode) {
+        Dataset<Row> stars = stars(spark, n, seed, partitions);
+        List<String> cols = new ArrayList<>(astrometryColumns());
+        for (String c : photometryColumns()) {
+            if (!cols.contains(c)) {
+                cols.add(c);
+            }
+        }
+        write(stars.selectExpr(cols.toArray(new String[0])), out + "/stars", mode);
+        write(stars.selectExpr(truthColumns().toArray(new String[0])), out + "/" + TRUTH, mode);
+    }
+
     private static void write(Dataset<Row> d, String path, SaveMode mode) {
         d.write().mode(mode).partitionBy("tile").parquet(path);
     }
