@@ -31,6 +31,7 @@ import org.starderive.udf.DerivedColumn;
 import org.starderive.udf.DerivedSchema;
 import org.starderive.udf.StarColumns;
 import org.starderive.udf.StarDeriveUdf;
+import org.starderive.udf.StarMonteCarloUdf;
 
 /**
  * The transformation from input table(s) to the derived catalogue, without I/O:
@@ -222,7 +223,13 @@ public final class DerivePipeline {
      */
     public Dataset<Row> derive(Dataset<Row> withDup, String table) {
         StructType schema = withDup.schema();
-        for (String derived : DerivedSchema.names()) {
+        List<String> derivedNames = new ArrayList<>(DerivedSchema.names());
+        if (config.monteCarlo()) {
+            for (DerivedColumn c : StarMonteCarloUdf.COLUMNS) {
+                derivedNames.add(c.name());
+            }
+        }
+        for (String derived : derivedNames) {
             if (schema.getFieldIndex(derived).isDefined()) {
                 throw JobException.input("Input " + table + ": column '" + derived + "' has the name of a derived column "
                         + "(rule: input columns must not collide with derived ones; rename it upstream)");
@@ -233,9 +240,17 @@ public final class DerivePipeline {
         for (String f : StarColumns.INPUT_FIELDS) {
             fields.add(inputs.get(f).as(f));
         }
-        Column result = StarDeriveUdf.function(config.settings()).apply(org.apache.spark.sql.functions.struct(fields.toArray(new Column[0])));
+        Column inputStruct = org.apache.spark.sql.functions.struct(fields.toArray(new Column[0]));
+        Column result = StarDeriveUdf.function(config.settings()).apply(inputStruct);
         String d = "__starderive_result";
-        Dataset<Row> withResult = withDup.withColumn(d, result);
+        String mc = "__starderive_mc";
+        Dataset<Row> withResult = TestHooks.maybeFailFirstAttempt(withDup).withColumn(d, result);
+        if (config.monteCarlo()) {
+            List<Column> mcFields = new ArrayList<>(fields);
+            mcFields.add(org.apache.spark.sql.functions.xxhash64(col(idColumn)).as(StarMonteCarloUdf.STAR_KEY));
+            Column mcStruct = org.apache.spark.sql.functions.struct(mcFields.toArray(new Column[0]));
+            withResult = withResult.withColumn(mc, StarMonteCarloUdf.function(config.settings(), config.draws(), config.seed()).apply(mcStruct));
+        }
         List<Column> sel = new ArrayList<>();
         for (String c : schema.fieldNames()) {
             if (!c.equals(DUP_COL)) {
@@ -254,6 +269,11 @@ public final class DerivePipeline {
                         org.apache.spark.sql.functions.array(lit(QualityFlag.DUPLICATE_ID.name())))).otherwise(v);
             }
             sel.add(v.as(c.name(), DerivedSchema.metadata(c)));
+        }
+        if (config.monteCarlo()) {
+            for (DerivedColumn c : StarMonteCarloUdf.COLUMNS) {
+                sel.add(col(mc + "." + c.name()).as(c.name(), DerivedSchema.metadata(c)));
+            }
         }
         return withResult.select(sel.toArray(new Column[0]));
     }

@@ -107,8 +107,16 @@ public final class JobConfig {
     public static final String KEY_PHYSICS = "physics";
     public static final String KEY_OUTPUT = "output";
     public static final String COMPRESSION_DEFAULT = "snappy";
+    public static final String KEY_UNCERTAINTY = "uncertainty";
+    /** analytic (first order) or montecarlo (percentiles over draws). */
+    public static final String UNCERTAINTY_METHOD_DEFAULT = "analytic";
+    /** Monte Carlo draws per star. */
+    public static final int DRAWS_DEFAULT = 128;
+    /** Run seed of the Monte Carlo streams. */
+    public static final long SEED_DEFAULT = 1L;
 
-    private static final Set<String> TOP_KEYS = Set.of(KEY_COLUMNS, KEY_PHYSICS, KEY_OUTPUT);
+    private static final Set<String> TOP_KEYS = Set.of(KEY_COLUMNS, KEY_PHYSICS, KEY_OUTPUT, KEY_UNCERTAINTY);
+    private static final Set<String> UNCERTAINTY_KEYS = Set.of("method", "draws", "seed");
     private static final Set<String> COLUMN_KEYS = Set.of("star_id", "parallax", "parallax_err", "parallax_unit",
             "bands", "ebv", "ebv_err", "av", "feh", "feh_err");
     private static final Set<String> BAND_KEYS = Set.of("mag", "err", "err_value");
@@ -135,6 +143,9 @@ public final class JobConfig {
     private final DeriveSettings settings;
     private final String compression;
     private final JsonNode resolved;
+    private String uncertaintyMethod;
+    private int draws;
+    private long seed;
 
     private JobConfig(String origin, JsonNode root) {
         this.origin = origin;
@@ -200,8 +211,36 @@ public final class JobConfig {
         if (!COMPRESSIONS.contains(compression)) {
             throw bad(KEY_OUTPUT + ".compression", compression, "must be one of " + new TreeSet<>(COMPRESSIONS));
         }
+        JsonNode u = object(root, KEY_UNCERTAINTY);
+        checkKeys(u, KEY_UNCERTAINTY, UNCERTAINTY_KEYS);
+        uncertaintyMethod = text(u, KEY_UNCERTAINTY, "method", UNCERTAINTY_METHOD_DEFAULT);
+        double d = number(u, KEY_UNCERTAINTY, "draws", DRAWS_DEFAULT);
+        double sd = number(u, KEY_UNCERTAINTY, "seed", SEED_DEFAULT);
+        withUncertainty(uncertaintyMethod, d, sd, KEY_UNCERTAINTY + ".");
         resolved = root;
     }
+
+    /** Sets the uncertainty method (config or command line), checking each value. */
+    JobConfig withUncertainty(String method, double drawsValue, double seedValue, String prefix) {
+        if (!method.equals("analytic") && !method.equals("montecarlo")) {
+            throw bad(prefix + "method", method, "must be analytic or montecarlo");
+        }
+        if (!(drawsValue >= 8 && drawsValue <= 100_000) || drawsValue != Math.rint(drawsValue)) {
+            throw bad(prefix + "draws", String.valueOf(drawsValue), "must be a whole number from 8 to 100000");
+        }
+        if (!Double.isFinite(seedValue) || seedValue != Math.rint(seedValue) || Math.abs(seedValue) > 9.007199254740992E15) {
+            throw bad(prefix + "seed", String.valueOf(seedValue), "must be a whole number");
+        }
+        uncertaintyMethod = method;
+        draws = (int) drawsValue;
+        seed = (long) seedValue;
+        return this;
+    }
+
+    public boolean monteCarlo() { return uncertaintyMethod.equals("montecarlo"); }
+    public String uncertaintyMethod() { return uncertaintyMethod; }
+    public int draws() { return draws; }
+    public long seed() { return seed; }
 
     /** The configuration with no file: canonical column names, default physics. */
     public static JobConfig defaults() {
@@ -409,6 +448,14 @@ public final class JobConfig {
         s.put("mag_max", d.magMax());
         s.put("parallax_unit", parallaxUnit.name().toLowerCase());
         s.put("compression", compression);
+        ObjectNode un = n.putObject("uncertainty_resolved");
+        un.put("method", uncertaintyMethod);
+        if (monteCarlo()) {
+            un.put("draws", draws);
+            un.put("seed", seed);
+            un.put("star_key", "xxhash64 of the star id (Spark xxhash64, seed 42)");
+            un.put("generator", "Commons RNG XO_RO_SHI_RO_128_PP seeded per star from (seed, star_key)");
+        }
         return n;
     }
 }

@@ -17,7 +17,8 @@ import picocli.CommandLine.Option;
 @Command(name = "starderive", mixinStandardHelpOptions = true, versionProvider = Main.Version.class,
         description = "Derived stellar parameters (distance, Teff, L, R, M, log g, angular diameter) with uncertainties and "
                 + "quality flags for survey catalogues, as an Apache Spark batch job.",
-        subcommands = {Main.Derive.class, Main.Sample.class, Main.Rewrite.class, CommandLine.HelpCommand.class})
+        subcommands = {Main.Derive.class, Main.Sample.class, Main.Report.class, Main.Recovery.class, Main.Rewrite.class,
+                CommandLine.HelpCommand.class})
 public final class Main implements Runnable {
 
     @CommandLine.Spec
@@ -77,6 +78,20 @@ public final class Main implements Runnable {
                         + "the partitions present in the input). Default: ${DEFAULT-VALUE}.")
         String writeMode;
 
+        @Option(names = "--uncertainty", paramLabel = "METHOD",
+                description = "analytic (first order) or montecarlo (16/50/84th percentiles over draws, in addition). "
+                        + "Default: uncertainty.method of the config, else analytic.")
+        String uncertainty;
+
+        @Option(names = "--draws", paramLabel = "N",
+                description = "Monte Carlo draws per star. Default: uncertainty.draws of the config, else 128.")
+        Integer draws;
+
+        @Option(names = "--seed", paramLabel = "S",
+                description = "Run seed of the Monte Carlo (a star's draws depend only on this and its id). "
+                        + "Default: uncertainty.seed of the config, else 1.")
+        Long seed;
+
         @CommandLine.Mixin
         SparkOptionsMixin spark = new SparkOptionsMixin();
 
@@ -94,6 +109,10 @@ public final class Main implements Runnable {
                 throw JobException.config("Invalid --input-format: " + inputFormat + " (must be parquet or csv)");
             }
             JobConfig cfg = config == null ? JobConfig.defaults() : JobConfig.load(config);
+            if (uncertainty != null || draws != null || seed != null) {
+                cfg.withUncertainty(uncertainty != null ? uncertainty : cfg.uncertaintyMethod(),
+                        draws != null ? draws : cfg.draws(), seed != null ? seed : cfg.seed(), "--");
+            }
             return Sessions.withSession(spark.master, "starderive derive", session -> {
                 DeriveJob.Summary s = DeriveJob.run(session, req, cfg);
                 PrintWriter out = spec.commandLine().getOut();
@@ -175,6 +194,81 @@ public final class Main implements Runnable {
                     w.println("photometry: " + out + "/photometry");
                 }
                 w.println("truth:      " + out + "/truth");
+                w.flush();
+                return 0;
+            });
+        }
+    }
+
+    @Command(name = "report", mixinStandardHelpOptions = true, sortOptions = false,
+            description = "QA report of a derived catalogue: rows per flag and per partition, distributions, and a "
+                    + "density-shaded HR diagram (PNG), tied together in index.md / index.html.")
+    static final class Report implements Callable<Integer> {
+        @CommandLine.Spec
+        CommandLine.Model.CommandSpec spec;
+
+        @Option(names = "--catalog", required = true, paramLabel = "DIR", description = "Derived catalogue (output of derive).")
+        String catalog;
+
+        @Option(names = "--out", required = true, paramLabel = "DIR", description = "Folder for the report.")
+        String out;
+
+        @CommandLine.Mixin
+        SparkOptionsMixin spark = new SparkOptionsMixin();
+
+        @Override
+        public Integer call() {
+            return Sessions.withSession(spark.master, "starderive report", session -> {
+                long t0 = System.nanoTime();
+                org.starderive.report.QaReport.Result r;
+                try {
+                    r = org.starderive.report.QaReport.run(session, catalog, out);
+                } catch (java.io.IOException e) {
+                    throw JobException.output("Report " + out + ": cannot be written (" + e.getMessage() + ")");
+                }
+                PrintWriter w = spec.commandLine().getOut();
+                w.printf("starderive report: %,d rows, %,d in the HR diagram, %.1f s%n", r.rows, r.hrStars,
+                        (System.nanoTime() - t0) / 1e9);
+                w.println("report: " + out + "/index.html");
+                w.flush();
+                return 0;
+            });
+        }
+    }
+
+    @Command(name = "recovery", mixinStandardHelpOptions = true, sortOptions = false,
+            description = "Injection-recovery report: a catalogue derived from the synthetic survey against its truth "
+                    + "table (bias, scatter, 68 % coverage per parallax-significance bin and class; flag diagnostics).")
+    static final class Recovery implements Callable<Integer> {
+        @CommandLine.Spec
+        CommandLine.Model.CommandSpec spec;
+
+        @Option(names = "--derived", required = true, paramLabel = "DIR", description = "Derived catalogue of the synthetic survey.")
+        String derived;
+
+        @Option(names = "--truth", required = true, paramLabel = "DIR", description = "truth/ table written by sample.")
+        String truth;
+
+        @Option(names = "--out", required = true, paramLabel = "DIR", description = "Folder for the report.")
+        String out;
+
+        @CommandLine.Mixin
+        SparkOptionsMixin spark = new SparkOptionsMixin();
+
+        @Override
+        public Integer call() {
+            return Sessions.withSession(spark.master, "starderive recovery", session -> {
+                org.starderive.report.RecoveryReport.Result r;
+                try {
+                    r = org.starderive.report.RecoveryReport.run(session, derived, truth, out);
+                } catch (java.io.IOException e) {
+                    throw JobException.output("Report " + out + ": cannot be written (" + e.getMessage() + ")");
+                }
+                PrintWriter w = spec.commandLine().getOut();
+                w.printf("starderive recovery: %,d stars%n", r.stars);
+                r.clean.forEach((q, s) -> w.printf("  %-7s n=%d bias %+.2f%% scatter %.2f%% coverage %.3f%n", q, s.n,
+                        100 * s.bias, 100 * s.scatter, s.coverage));
+                w.println("report: " + out + "/index.html");
                 w.flush();
                 return 0;
             });

@@ -103,6 +103,13 @@ public final class OutputCommitter {
         }
         try {
             restoreInterruptedCommit();
+            FileStatus[] stale = fs.globStatus(new Path(output.getParent(), output.getName() + ".staging-*"));
+            if (stale != null) {
+                for (FileStatus st : stale) {
+                    LOG.warn("Stale staging folder {} from a run that was killed; it is not part of the output and can be deleted",
+                            st.getPath());
+                }
+            }
             boolean exists = fs.exists(output);
             if (exists && mode == Mode.FAIL) {
                 throw JobException.output("Output " + output + " already exists (rule: --write-mode fail never replaces; "

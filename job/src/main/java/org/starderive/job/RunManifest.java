@@ -61,7 +61,9 @@ public final class RunManifest {
         methods.put("mass_luminosity", MassLuminosityEker2018.CITATION);
         methods.put("luminosity_class", LuminosityClass.CLASSING_CITATION);
         methods.put("surface_brightness", SurfaceBrightnessKervella2004.CITATION);
-        methods.put("uncertainties", "first order (analytic), inputs treated as independent");
+        methods.put("uncertainties", "first order (analytic): inputs independent except shared bands, E(B-V), [Fe/H] "
+                + "and log g in the Teff mean" + (config.monteCarlo() ? "; plus Monte Carlo percentiles over "
+                + config.draws() + " draws per star (" + org.starderive.physics.MonteCarloDeriver.class.getSimpleName() + ")" : ""));
         ArrayNode constants = methods.putArray("constants");
         for (Constant c : new Constant[] {Iau2015.R_SUN, Iau2015.L_SUN, Iau2015.TEFF_SUN, Iau2015.GM_SUN, Iau2015.L0,
                 Iau2012.AU, Codata2018.SIGMA_SB, Codata2018.G, DerivedConstants.PARSEC, DerivedConstants.M_SUN,

@@ -98,6 +98,52 @@ class PackagedJarsIT {
     }
 
     @Test
+    void aRunKilledWhileWritingLeavesThePreviousOutputAndARerunIsCorrect() throws Exception {
+        SparkSession spark = SharedSpark.spark();
+        Path survey = tmp.resolve("survey");
+        org.starderive.sample.SampleSurvey.writeSingle(spark, 600_000, 4, survey.toString(), 4, org.apache.spark.sql.SaveMode.ErrorIfExists);
+        Path in = survey.resolve("stars");
+        Path out = tmp.resolve("out");
+        assertEquals(0, Main.execute("derive", "--input", in.toString(), "--output", out.toString()));
+        java.util.Map<String, String> before = TestCatalogs.treeHash(out);
+        List<Row> first = spark.read().parquet(out.toString()).drop("flag_names").orderBy("star_id").limit(2000).collectAsList();
+
+        // overwrite in a child JVM; SIGKILL it as soon as its staging folder holds data files
+        Path log = tmp.resolve("killed.log");
+        Process p = new ProcessBuilder(java(), "-jar", prop("starderive.localJar"), "derive", "--master", "local[2]",
+                "--input", in.toString(), "--output", out.toString(), "--write-mode", "overwrite")
+                .redirectErrorStream(true).redirectOutput(log.toFile()).start();
+        boolean killedWhileWriting = false;
+        long deadline = System.nanoTime() + TimeUnit.MINUTES.toNanos(3);
+        while (System.nanoTime() < deadline && p.isAlive()) {
+            try (Stream<Path> s = Files.list(tmp)) {
+                List<Path> staging = s.filter(x -> x.getFileName().toString().startsWith("out.staging-")).collect(Collectors.toList());
+                if (!staging.isEmpty()) {
+                    try (Stream<Path> w = Files.walk(staging.get(0))) {
+                        if (w.anyMatch(x -> x.getFileName().toString().endsWith(".parquet"))) {
+                            p.destroyForcibly(); // SIGKILL
+                            killedWhileWriting = true;
+                            break;
+                        }
+                    } catch (java.io.UncheckedIOException | java.nio.file.NoSuchFileException e) {
+                        // the writer moved files while we looked: look again
+                    }
+                }
+            }
+            Thread.sleep(50);
+        }
+        p.waitFor(1, TimeUnit.MINUTES);
+        assertTrue(killedWhileWriting, "the child was killed while writing: " + Files.readString(log));
+        assertEquals(before, TestCatalogs.treeHash(out), "previous output intact after SIGKILL");
+
+        // a rerun succeeds and gives the same content
+        assertEquals(0, Main.execute("derive", "--input", in.toString(), "--output", out.toString(), "--write-mode", "overwrite"));
+        List<Row> again = spark.read().parquet(out.toString()).drop("flag_names").orderBy("star_id").limit(2000).collectAsList();
+        assertEquals(first, again);
+        assertEquals(600_000, spark.read().parquet(out.toString()).count());
+    }
+
+    @Test
     void helpExplainsEveryOptionWithItsDefault() throws Exception {
         Path log = tmp.resolve("help.log");
         assertEquals(0, run(List.of(java(), "-jar", prop("starderive.localJar"), "derive", "--help"), log));

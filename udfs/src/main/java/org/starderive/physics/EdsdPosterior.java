@@ -18,6 +18,15 @@ public final class EdsdPosterior {
 
     private final int intervals;
     private final double[] cumulative;
+    // the last successful call's grid, for sampling
+    private double lastULo;
+    private double lastH;
+    private double lastMax;
+    private double lastTotal;
+    private double lastParallax;
+    private double lastSigma;
+    private double lastLength;
+    private boolean lastValid;
 
     public EdsdPosterior(int intervals) {
         if (!(intervals >= 8)) {
@@ -98,8 +107,17 @@ public final class EdsdPosterior {
         }
         if (!(total > 0) || !Double.isFinite(total)) {
             java.util.Arrays.fill(outKpc, 0, probs.length, Double.NaN);
+            lastValid = false;
             return false;
         }
+        lastULo = uLo;
+        lastH = h;
+        lastMax = max;
+        lastTotal = total;
+        lastParallax = parallaxMas;
+        lastSigma = sigmaMas;
+        lastLength = lengthKpc;
+        lastValid = true;
         int i = 0;
         for (int k = 0; k < probs.length; k++) {
             double target = probs[k] * total;
@@ -118,5 +136,34 @@ public final class EdsdPosterior {
             outKpc[k] = Math.exp(ua + t);
         }
         return true;
+    }
+
+    /**
+     * The distance in kpc at cumulative probability {@code p} of the posterior of the last successful
+     * {@link #percentilesKpc} call (inverse-transform sampling with a uniform {@code p}); NaN if there is none.
+     */
+    public double quantileOfLast(double p) {
+        if (!lastValid) {
+            return Double.NaN;
+        }
+        double target = p * lastTotal;
+        int lo = 0;
+        int hi = intervals;
+        while (hi - lo > 1) {
+            int mid = (lo + hi) >>> 1;
+            if (cumulative[mid] < target) {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
+        }
+        double ua = lastULo + lo * lastH;
+        double wa = Math.exp(logDensityU(ua, lastParallax, lastSigma, lastLength) - lastMax);
+        double wb = Math.exp(logDensityU(ua + lastH, lastParallax, lastSigma, lastLength) - lastMax);
+        double rem = Math.max(0, target - cumulative[lo]);
+        double slope = (wb - wa) / (2 * lastH);
+        double disc = wa * wa + 4 * slope * rem;
+        double t = disc > 0 ? 2 * rem / (wa + Math.sqrt(disc)) : lastH;
+        return Math.exp(ua + Math.max(0, Math.min(lastH, t)));
     }
 }

@@ -35,8 +35,11 @@ import static org.starderive.physics.QualityFlag.*;
  *   <li>for main-sequence stars, the surface-brightness diameter ({@link SurfaceBrightnessKervella2004}) as a
  *       cross-check of the Stefan–Boltzmann one.</li>
  * </ol>
- * First-order errors treat the inputs as independent; the colour and the magnitude of a star share their
- * photometry, so these errors are approximate where one band dominates both (the Monte Carlo option is exact).
+ * First-order errors are propagated source by source: every independent source of error (each band's magnitude,
+ * E(B−V), [Fe/H], log g, the relations' scatter, the temperature scale's zero point, the G→V conversion, the
+ * distance) carries its derivative through Teff, M_bol, L, R, θ, mass, density and log g, so that shared inputs
+ * (V in both the colours and the magnitude) are correlated correctly. They remain linear approximations where errors
+ * are large; the Monte Carlo option ({@link MonteCarloDeriver}) is not.
  */
 public final class StarDeriver {
     /** Cumulative probabilities of the 16th, 50th and 84th percentiles (±1σ of a Gaussian). */
@@ -74,7 +77,6 @@ public final class StarDeriver {
     private double feh;
     private double sFeh;
     private double v0;
-    private double sV0;
     private boolean vObserved;
     private double mu;
     private double sMu;
@@ -90,8 +92,28 @@ public final class StarDeriver {
     private boolean tAnyOutOfRange;
     private boolean tBoundBroken;
     private final double[] gradBand = new double[Band.COUNT];
-    // chain state
+    // chain state: first-order error contributions of each independent source (value = derivative × σ of the source)
+    private static final int SRC_EBV = Band.COUNT;
+    private static final int SRC_FEH = Band.COUNT + 1;
+    private static final int SRC_LOGG = Band.COUNT + 2;
+    private static final int SRC_SCATTER = Band.COUNT + 3;
+    private static final int SRC_ZP = Band.COUNT + 4;
+    private static final int SRC_GV = Band.COUNT + 5;
+    private static final int SRC_MU = Band.COUNT + 6;
+    private static final int NSRC = Band.COUNT + 7;
+    /** Contributions to Teff. */
+    private final double[] cT = new double[NSRC];
+    /** Contributions to V₀. */
+    private final double[] cV = new double[NSRC];
+    /** Contributions to the absolute bolometric magnitude. */
+    private final double[] cMbol = new double[NSRC];
+    /** Contributions to ln R. */
+    private final double[] cLnR = new double[NSRC];
+    private final double[] work = new double[NSRC];
     private double sMbol;
+    // Monte Carlo draw overrides (NaN / null: off)
+    private double drawDistPc = Double.NaN;
+    private double[] drawTeffOffsetK;
 
     public StarDeriver(DeriveSettings settings) {
         this.settings = settings;
@@ -116,6 +138,27 @@ public final class StarDeriver {
 
     public DeriveSettings settings() { return settings; }
 
+    /** The enabled relations, in the order used by {@link #deriveDraw} offsets. */
+    TeffRelation[] enabledRelations() { return relations; }
+
+    /** The posterior work object (for sampling distances in Monte Carlo). */
+    EdsdPosterior posterior() { return posterior; }
+
+    /**
+     * One Monte Carlo draw: the chain with the distance fixed to {@code distPc} (NaN: computed as usual) and each
+     * enabled relation's Teff shifted by {@code teffOffsetK[k]} (its scatter and zero point drawn by the caller).
+     */
+    StarResult deriveDraw(StarInput in, StarResult out, double distPc, double[] teffOffsetK) {
+        drawDistPc = distPc;
+        drawTeffOffsetK = teffOffsetK;
+        try {
+            return derive(in, out);
+        } finally {
+            drawDistPc = Double.NaN;
+            drawTeffOffsetK = null;
+        }
+    }
+
     /** Derives everything for {@code in} into {@code out} (cleared first) and returns {@code out}. */
     public StarResult derive(StarInput in, StarResult out) {
         out.clear();
@@ -124,7 +167,14 @@ public final class StarDeriver {
         flags |= readExtinction(in, out);
         flags |= readMetallicity(in);
         deredden();
-        flags |= distance(in, out);
+        if (Double.isNaN(drawDistPc)) {
+            flags |= distance(in, out);
+        } else {
+            // a Monte Carlo draw: the distance is the sampled one, known exactly within the draw
+            out.distMethod = StarResult.DistanceMethod.INVERSE_PARALLAX;
+            out.distPc = drawDistPc;
+            out.distLoPc = out.distHiPc = drawDistPc;
+        }
         boolean haveDist = out.distPc > 0 && Double.isFinite(out.distPc);
         if (haveDist) {
             mu = 5 * Math.log10(out.distPc / 10.0);
@@ -235,6 +285,14 @@ public final class StarDeriver {
     }
 
     private static double sq(double x) { return x * x; }
+
+    private static double norm(double[] c) {
+        double s2 = 0;
+        for (double v : c) {
+            s2 += v * v;
+        }
+        return Math.sqrt(s2);
+    }
 
     private long readPhotometry(StarInput in) {
         long flags = 0;
@@ -391,12 +449,14 @@ public final class StarDeriver {
     private long visualMagnitude() {
         int vi = V.ordinal();
         vObserved = !Double.isNaN(m0[vi]);
+        java.util.Arrays.fill(cV, 0);
         if (vObserved) {
             v0 = m0[vi];
-            sV0 = Math.hypot(sm[vi], rBand[vi] * sEbv);
+            cV[vi] = sm[vi];
+            cV[SRC_EBV] = -rBand[vi] * sEbv;
             return 0;
         }
-        v0 = sV0 = Double.NaN;
+        v0 = Double.NaN;
         int g = G.ordinal();
         int bp = BP.ordinal();
         int rp = RP.ordinal();
@@ -409,8 +469,11 @@ public final class StarDeriver {
         }
         v0 = m0[g] - GaiaToJohnsonRiello2021.gMinusV(c0);
         double dc = GaiaToJohnsonRiello2021.dGMinusVdC(c0);
-        sV0 = Math.sqrt(sm[g] * sm[g] + dc * dc * (sm[bp] * sm[bp] + sm[rp] * sm[rp])
-                + sq(GaiaToJohnsonRiello2021.SCATTER_MAG) + sq(rBand[g] * sEbv));
+        cV[g] = sm[g];
+        cV[bp] = -dc * sm[bp];
+        cV[rp] = dc * sm[rp];
+        cV[SRC_EBV] = (-rBand[g] + dc * (rBand[bp] - rBand[rp])) * sEbv;
+        cV[SRC_GV] = GaiaToJohnsonRiello2021.SCATTER_MAG;
         return V_FROM_G.mask();
     }
 
@@ -481,6 +544,9 @@ public final class StarDeriver {
                 }
             }
             double t = r.teff(x, feh, logg);
+            if (drawTeffOffsetK != null) {
+                t += drawTeffOffsetK[k];
+            }
             if (!(t >= TEFF_SANE_MIN_K && t <= TEFF_SANE_MAX_K)) {
                 continue;
             }
@@ -514,13 +580,16 @@ public final class StarDeriver {
             return;
         }
         tMean = sumWT / sumW;
-        double var = scatterVar + sq(gEbv * sEbv) + sq(gFeh * sFeh) + sq(gLogg * sLogg);
+        java.util.Arrays.fill(cT, 0);
         for (int b = 0; b < Band.COUNT; b++) {
-            if (gradBand[b] != 0) {
-                var += sq(gradBand[b] * sm[b]);
-            }
+            cT[b] = gradBand[b] == 0 ? 0 : gradBand[b] * sm[b] / sumW;
         }
-        tErr = Math.sqrt(var / (sumW * sumW) + zp * zp);
+        cT[SRC_EBV] = gEbv * sEbv / sumW;
+        cT[SRC_FEH] = gFeh * sFeh / sumW;
+        cT[SRC_LOGG] = gLogg * sLogg / sumW;
+        cT[SRC_SCATTER] = Math.sqrt(scatterVar) / sumW;
+        cT[SRC_ZP] = zp;
+        tErr = norm(cT);
         double chi2 = 0;
         for (int i = 0; i < n; i++) {
             chi2 += wEst[i] * sq(tEst[i] - tMean);
@@ -541,30 +610,38 @@ public final class StarDeriver {
         }
         double t = tMean;
         out.bcV = BolometricCorrectionFlower1996.bcV(t);
-        out.bcVErr = Math.abs(BolometricCorrectionFlower1996.dBcVdTeff(t)) * tErr;
+        double beta = BolometricCorrectionFlower1996.dBcVdTeff(t);
+        out.bcVErr = Math.abs(beta) * tErr;
         if (Double.isNaN(v0)) {
             return;
         }
         double mbolApp = v0 + out.bcV;
-        double sMbolApp = Math.hypot(sV0, out.bcVErr);
         double tRatio2 = sq(Iau2015.TEFF_SUN_K / t);
-        double relT = 2 * tErr / t;
-        // angular diameter from the bolometric flux alone: the radius the star would have at 10 pc, seen from 10 pc
+        // apparent bolometric magnitude and ln θ: V₀ and Teff share sources (V is in the colours), so their
+        // contributions are added source by source before squaring
+        for (int j = 0; j < NSRC; j++) {
+            cMbol[j] = cV[j] + beta * cT[j];
+            work[j] = -0.2 * LN10 * cMbol[j] - 2 * cT[j] / t;
+        }
         double lumAt10pc = Math.pow(10, -0.4 * (mbolApp - BolometricCorrectionFlower1996.MBOL_SUN));
         out.angDiamMas = THETA_SUN_AT_10PC_MAS * Math.sqrt(lumAt10pc) * tRatio2;
-        out.angDiamErrMas = out.angDiamMas * Math.hypot(0.2 * LN10 * sMbolApp, relT);
+        out.angDiamErrMas = out.angDiamMas * norm(work);
         if (!haveDist) {
             return;
         }
         double mbolAbs = mbolApp - mu;
-        sMbol = Math.hypot(sMbolApp, sMu);
+        cMbol[SRC_MU] = -sMu;
+        sMbol = norm(cMbol);
+        for (int j = 0; j < NSRC; j++) {
+            cLnR[j] = -0.2 * LN10 * cMbol[j] - 2 * cT[j] / t;
+        }
         out.mbolMag = mbolAbs - BolometricCorrectionFlower1996.MBOL_SUN + DerivedConstants.MBOL_SUN_IAU;
         out.mbolErrMag = sMbol;
         out.lumLsun = Math.pow(10, -0.4 * (mbolAbs - BolometricCorrectionFlower1996.MBOL_SUN));
         out.lumErrLsun = out.lumLsun * 0.4 * LN10 * sMbol;
         out.lumW = out.lumLsun * Iau2015.L_SUN_W;
         out.radiusRsun = Math.sqrt(out.lumLsun) * tRatio2;
-        out.radiusErrRsun = out.radiusRsun * Math.hypot(0.2 * LN10 * sMbol, relT);
+        out.radiusErrRsun = out.radiusRsun * norm(cLnR);
     }
 
     private void massChain(StarResult out) {
@@ -577,17 +654,25 @@ public final class StarDeriver {
             return;
         }
         double m = Math.pow(10, logM);
-        double sLogM = Math.abs(MassLuminosityEker2018.dLogMassDLogL(logL)) * 0.4 * sMbol;
-        double relM = LN10 * sLogM;
+        double slope = MassLuminosityEker2018.dLogMassDLogL(logL);
         double r = out.radiusRsun;
-        double relR = out.radiusErrRsun / r;
+        // ln M = ln10 · slope · (−0.4 M_bol); ln ρ = ln M − 3 ln R; log g = (ln M − 2 ln R) / ln10, source by source
+        double varLnM = 0;
+        double varLnRho = 0;
+        double varLnG = 0;
+        for (int j = 0; j < NSRC; j++) {
+            double lnM = LN10 * slope * -0.4 * cMbol[j];
+            varLnM += lnM * lnM;
+            varLnRho += sq(lnM - 3 * cLnR[j]);
+            varLnG += sq(lnM - 2 * cLnR[j]);
+        }
         out.massMsun = m;
-        out.massErrMsun = m * relM;
+        out.massErrMsun = m * Math.sqrt(varLnM);
         out.densitySun = m / (r * r * r);
         out.densityKgM3 = out.densitySun * DerivedConstants.RHO_SUN_KG_M3;
-        out.densityErrKgM3 = out.densityKgM3 * Math.hypot(relM, 3 * relR);
+        out.densityErrKgM3 = out.densityKgM3 * Math.sqrt(varLnRho);
         out.loggCgs = DerivedConstants.LOGG_SUN_CGS + logM - 2 * Math.log10(r);
-        out.loggErrCgs = Math.hypot(relM, 2 * relR) / LN10;
+        out.loggErrCgs = Math.sqrt(varLnG) / LN10;
     }
 
     private void crossCheckDiameter(StarResult out) {

@@ -13,7 +13,6 @@ import org.starderive.physics.Band;
 import org.starderive.physics.DeriveSettings;
 import org.starderive.physics.QualityFlag;
 import org.starderive.physics.StarDeriver;
-import org.starderive.physics.StarInput;
 import org.starderive.physics.StarResult;
 
 /**
@@ -35,7 +34,7 @@ public final class StarDeriveUdf implements UDF1<Row, Row> {
 
     private static final class Work {
         final StarDeriver deriver;
-        final StarInput in = new StarInput();
+        final StarInputReader reader = new StarInputReader();
         final StarResult out = new StarResult();
 
         Work(DeriveSettings s) { deriver = new StarDeriver(s); }
@@ -75,35 +74,10 @@ public final class StarDeriveUdf implements UDF1<Row, Row> {
         return functions.struct(cols.toArray(new Column[0]));
     }
 
-    private static boolean present(Row r, int i) {
-        return !r.isNullAt(i);
-    }
-
     @Override
     public Row call(Row row) {
         Work w = work();
-        StarInput in = w.in.clear();
-        if (row != null) {
-            int i = 0;
-            if (present(row, i)) { in.hasParallax = true; in.parallaxMas = row.getDouble(i); }
-            i++;
-            if (present(row, i)) { in.hasParallaxErr = true; in.parallaxErrMas = row.getDouble(i); }
-            i++;
-            for (int b = 0; b < NB; b++) {
-                if (present(row, i)) { in.hasMag[b] = true; in.mag[b] = row.getDouble(i); }
-                i++;
-                if (present(row, i)) { in.hasMagErr[b] = true; in.magErr[b] = row.getDouble(i); }
-                i++;
-            }
-            if (present(row, i)) { in.hasEbv = true; in.ebv = row.getDouble(i); }
-            i++;
-            if (present(row, i)) { in.hasEbvErr = true; in.ebvErr = row.getDouble(i); }
-            i++;
-            if (present(row, i)) { in.hasFeh = true; in.feh = row.getDouble(i); }
-            i++;
-            if (present(row, i)) { in.hasFehErr = true; in.fehErr = row.getDouble(i); }
-        }
-        StarResult o = w.deriver.derive(in, w.out);
+        StarResult o = w.deriver.derive(w.reader.read(row), w.out);
         return toRow(o);
     }
 

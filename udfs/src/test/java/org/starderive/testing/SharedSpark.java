@@ -5,7 +5,7 @@ import org.apache.spark.SparkConf;
 import org.apache.spark.sql.SparkSession;
 
 /**
- * The one SparkSession of a test JVM (local[2], no UI, no Hive), created on first use through spark-testing-base's
+ * The one SparkSession of a test JVM (local[2] with one task retry, no UI, no Hive), created on first use through spark-testing-base's
  * {@link JavaDataFrameSuiteBase} so that its DataFrame comparisons are available to JUnit 5 tests, and stopped when
  * the JVM exits.
  */
@@ -22,7 +22,8 @@ public final class SharedSpark {
         @Override
         public SparkConf conf() {
             return new SparkConf()
-                    .setMaster("local[2]")
+                    // local[2, 2]: two threads and one retry, so that a test can make a task fail once
+                    .setMaster("local[2,2]")
                     .setAppName("starderive-tests")
                     .set("spark.ui.enabled", "false")
                     .set("spark.driver.host", "localhost")

@@ -1,0 +1,37 @@
+package org.starderive.job;
+
+import org.apache.spark.TaskContext;
+import org.apache.spark.sql.Dataset;
+import org.apache.spark.sql.Row;
+import org.apache.spark.sql.SparkSession;
+import org.apache.spark.sql.api.java.UDF1;
+import org.apache.spark.sql.expressions.UserDefinedFunction;
+import org.apache.spark.sql.functions;
+import org.apache.spark.sql.types.DataTypes;
+
+/**
+ * Test-only fault injection, off unless the Spark configuration sets {@value #FAIL_FIRST_ATTEMPT} to true: the first
+ * attempt of the task that processes partition 0 then throws, so Spark must retry it. Used to prove that a retried
+ * task writes the same numbers. Never set in production.
+ */
+public final class TestHooks {
+    private TestHooks() {}
+
+    public static final String FAIL_FIRST_ATTEMPT = "spark.starderive.test.failFirstAttempt";
+
+    static Dataset<Row> maybeFailFirstAttempt(Dataset<Row> d) {
+        SparkSession spark = d.sparkSession();
+        if (!Boolean.parseBoolean(spark.conf().get(FAIL_FIRST_ATTEMPT, "false"))) {
+            return d;
+        }
+        UDF1<Long, Boolean> gate = x -> {
+            TaskContext tc = TaskContext.get();
+            if (tc != null && tc.partitionId() == 0 && tc.attemptNumber() == 0) {
+                throw new IllegalStateException("injected failure (" + FAIL_FIRST_ATTEMPT + "): first attempt of partition 0");
+            }
+            return true;
+        };
+        UserDefinedFunction f = functions.udf(gate, DataTypes.BooleanType).asNondeterministic();
+        return d.filter(f.apply(functions.lit(1L)));
+    }
+}

@@ -1,0 +1,180 @@
+package org.starderive.physics;
+
+import java.util.Arrays;
+import org.apache.commons.rng.UniformRandomProvider;
+import org.apache.commons.rng.sampling.distribution.ZigguratSampler;
+import org.apache.commons.rng.simple.RandomSource;
+
+/**
+ * Monte Carlo propagation of every input uncertainty through the whole chain, giving the 16th, 50th and 84th
+ * percentiles of distance, Teff, L, R, mass, log g and angular diameter.
+ *
+ * <p>Each draw: magnitudes ~ N(m, σ_m); E(B−V) ~ N(E, σ_E) clipped at 0; [Fe/H] ~ N([Fe/H], σ); each colour
+ * relation's Teff shifted by its own scatter ~ N(0, σ_rel) and, common to all relations of a family, by the
+ * temperature scale's zero point; the distance sampled from the star's distance distribution — for an
+ * inverse-parallax star 1/ϖ' with ϖ' ~ N(ϖ, σ_ϖ) (redrawn if ϖ' ≤ 0), otherwise from the posterior under the
+ * exponentially decreasing space density prior (Bailer-Jones 2015) by inverse-transform sampling. Every draw goes
+ * through {@link StarDeriver}; percentiles are taken over the draws that gave a value (none if fewer than half did).
+ *
+ * <p>Reproducibility: the random stream of a star is a pure function of (run seed, star key) — a XoRoShiRo128++
+ * generator of Commons RNG seeded through SplitMix64 — never of partitioning, task attempt, executor or thread.
+ * No allocation per draw (one generator per star). Not thread-safe: one instance per thread.
+ */
+public final class MonteCarloDeriver {
+    /** Quantities with percentiles, in output order. */
+    public static final String[] QUANTITIES = {"dist", "teff", "lum", "radius", "mass", "logg", "ang_diam"};
+    public static final int NQ = QUANTITIES.length;
+
+    private final StarDeriver deriver;
+    private final int draws;
+    private final long runSeed;
+    private final TeffRelation[] relations;
+    private final double[] offsets;
+    private final double[][] samples;
+    private final int[] counts;
+    private final StarInput drawIn = new StarInput();
+    private final StarResult drawOut = new StarResult();
+    private final StarResult base = new StarResult();
+    private final double[] probs = {StarDeriver.P16, 0.5, StarDeriver.P84};
+    private final double[] q = new double[3];
+
+    public MonteCarloDeriver(DeriveSettings settings, int draws, long runSeed) {
+        if (!(draws >= 8 && draws <= 100_000)) {
+            throw new IllegalArgumentException("Invalid Monte Carlo draws: " + draws + " (must be between 8 and 100000)");
+        }
+        this.deriver = new StarDeriver(settings);
+        this.draws = draws;
+        this.runSeed = runSeed;
+        this.relations = deriver.enabledRelations();
+        this.offsets = new double[relations.length];
+        this.samples = new double[NQ][draws];
+        this.counts = new int[NQ];
+    }
+
+    public int draws() { return draws; }
+
+    /** The per-star generator seed: SplitMix64-style mix of the run seed and the star's key. */
+    static long starSeed(long runSeed, long starKey) {
+        long z = runSeed * 0x9E3779B97F4A7C15L + starKey;
+        z = (z ^ (z >>> 30)) * 0xBF58476D1CE4E5B9L;
+        z = (z ^ (z >>> 27)) * 0x94D049BB133111EBL;
+        return z ^ (z >>> 31);
+    }
+
+    private static void copy(StarInput from, StarInput to) {
+        to.hasParallax = from.hasParallax;
+        to.parallaxMas = from.parallaxMas;
+        to.hasParallaxErr = from.hasParallaxErr;
+        to.parallaxErrMas = from.parallaxErrMas;
+        System.arraycopy(from.hasMag, 0, to.hasMag, 0, Band.COUNT);
+        System.arraycopy(from.mag, 0, to.mag, 0, Band.COUNT);
+        System.arraycopy(from.hasMagErr, 0, to.hasMagErr, 0, Band.COUNT);
+        System.arraycopy(from.magErr, 0, to.magErr, 0, Band.COUNT);
+        to.hasEbv = from.hasEbv;
+        to.ebv = from.ebv;
+        to.hasEbvErr = from.hasEbvErr;
+        to.ebvErr = from.ebvErr;
+        to.hasFeh = from.hasFeh;
+        to.feh = from.feh;
+        to.hasFehErr = from.hasFehErr;
+        to.fehErr = from.fehErr;
+    }
+
+    private static boolean usable(double v, double e) {
+        return Double.isFinite(v) && e > 0 && Double.isFinite(e);
+    }
+
+    /**
+     * Writes the percentiles into {@code out[quantity][0..2]} (16th, 50th, 84th; NaN where none) for the star
+     * {@code in} with key {@code starKey} (a stable hash of its id).
+     */
+    public void percentiles(StarInput in, long starKey, double[][] out) {
+        StarResult b = deriver.derive(in, base);
+        UniformRandomProvider rng = RandomSource.XO_RO_SHI_RO_128_PP.create(starSeed(runSeed, starKey));
+        ZigguratSampler.NormalizedGaussian g = ZigguratSampler.NormalizedGaussian.of(rng);
+        boolean posterior = b.distMethod == StarResult.DistanceMethod.EDSD_MEDIAN
+                || b.distMethod == StarResult.DistanceMethod.EDSD_MODE;
+        double p = b.parallaxCorrMas;
+        double sp = in.parallaxErrMas;
+        boolean haveDistribution = b.distMethod != StarResult.DistanceMethod.NONE;
+        if (posterior) {
+            haveDistribution = deriver.posterior().percentilesKpc(p, sp, deriver.settings().priorLengthKpc(), probs, q);
+        }
+        Arrays.fill(counts, 0);
+        copy(in, drawIn);
+        for (int d = 0; d < draws; d++) {
+            // inputs
+            for (int k = 0; k < Band.COUNT; k++) {
+                if (in.hasMag[k] && in.hasMagErr[k] && usable(in.mag[k], in.magErr[k])) {
+                    drawIn.mag[k] = in.mag[k] + in.magErr[k] * g.sample();
+                }
+            }
+            if (in.hasEbv && in.hasEbvErr && usable(in.ebv, in.ebvErr)) {
+                drawIn.ebv = Math.max(0, in.ebv + in.ebvErr * g.sample());
+            }
+            if (in.hasFeh && in.hasFehErr && usable(in.feh, in.fehErr)) {
+                drawIn.feh = in.feh + in.fehErr * g.sample();
+            } else if (!in.hasFeh || !Double.isFinite(in.feh)) {
+                // the assumed metallicity carries its assumed spread
+                drawIn.hasFeh = true;
+                drawIn.feh = deriver.settings().fehDefault() + deriver.settings().fehErrDefault() * g.sample();
+                drawIn.hasFehErr = true;
+                drawIn.fehErr = 0;
+            }
+            // relation scatter and the families' zero points (one common draw per family)
+            double zC10 = g.sample();
+            double zC21 = g.sample();
+            for (int k = 0; k < relations.length; k++) {
+                TeffRelation r = relations[k];
+                double z = r.citation().equals(TeffRelations.C21) ? zC21 : zC10;
+                offsets[k] = r.scatterK() * g.sample() + r.zeroPointK() * z;
+            }
+            // distance
+            double dist = Double.NaN;
+            if (haveDistribution) {
+                if (posterior) {
+                    dist = 1000 * deriver.posterior().quantileOfLast(rng.nextDouble());
+                } else {
+                    double w = p + sp * g.sample();
+                    for (int t = 0; t < 16 && !(w > 0); t++) {
+                        w = p + sp * g.sample();
+                    }
+                    dist = w > 0 ? 1000 / w : Double.NaN;
+                }
+            }
+            StarResult r = deriver.deriveDraw(drawIn, drawOut, haveDistribution ? dist : Double.NaN, offsets);
+            add(0, r.distPc);
+            add(1, r.teffK);
+            add(2, r.lumLsun);
+            add(3, r.radiusRsun);
+            add(4, r.massMsun);
+            add(5, r.loggCgs);
+            add(6, r.angDiamMas);
+        }
+        for (int k = 0; k < NQ; k++) {
+            int n = counts[k];
+            if (n * 2 < draws) {
+                out[k][0] = out[k][1] = out[k][2] = Double.NaN;
+                continue;
+            }
+            Arrays.sort(samples[k], 0, n);
+            out[k][0] = quantile(samples[k], n, StarDeriver.P16);
+            out[k][1] = quantile(samples[k], n, 0.5);
+            out[k][2] = quantile(samples[k], n, StarDeriver.P84);
+        }
+    }
+
+    private void add(int k, double v) {
+        if (!Double.isNaN(v)) {
+            samples[k][counts[k]++] = v;
+        }
+    }
+
+    /** Linear interpolation between order statistics (type 7 of Hyndman &amp; Fan 1996). */
+    static double quantile(double[] sorted, int n, double p) {
+        double h = (n - 1) * p;
+        int lo = (int) Math.floor(h);
+        int hi = Math.min(n - 1, lo + 1);
+        return sorted[lo] + (h - lo) * (sorted[hi] - sorted[lo]);
+    }
+}

@@ -1,0 +1,86 @@
+package org.starderive.physics;
+
+import static org.junit.jupiter.api.Assertions.assertArrayEquals;
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.util.Arrays;
+import org.junit.jupiter.api.Test;
+
+class MonteCarloDeriverTest {
+
+    private static double[][] run(MonteCarloDeriver mc, StarInput in, long key) {
+        double[][] out = new double[MonteCarloDeriver.NQ][3];
+        mc.percentiles(in, key, out);
+        return out;
+    }
+
+    @Test
+    void sameSeedAndKeyGiveTheSameNumbersWhateverCameBefore() {
+        MonteCarloDeriver a = new MonteCarloDeriver(DeriveSettings.defaults(), 64, 7);
+        MonteCarloDeriver b = new MonteCarloDeriver(DeriveSettings.defaults(), 64, 7);
+        StarInput sun = StarDeriverTest.solarTwinAt10pc();
+        double[][] first = run(a, sun, 12345L);
+        run(b, StarDeriverTest.solarTwinAt10pc().feh(-1, 0.1), 999L); // b has done other work first
+        double[][] second = run(b, sun, 12345L);
+        for (int k = 0; k < MonteCarloDeriver.NQ; k++) {
+            assertArrayEquals(first[k], second[k], 0.0, MonteCarloDeriver.QUANTITIES[k]);
+        }
+        double[][] otherKey = run(a, sun, 12346L);
+        assertFalse(Arrays.equals(first[1], otherKey[1]), "another star key draws other numbers");
+        double[][] otherSeed = run(new MonteCarloDeriver(DeriveSettings.defaults(), 64, 8), sun, 12345L);
+        assertFalse(Arrays.equals(first[1], otherSeed[1]), "another run seed draws other numbers");
+    }
+
+    @Test
+    void highSignificanceDistancePercentilesAreThoseOfTheInverseParallax() {
+        // w = 100 +- 1 mas: percentiles of 1/w' with w' ~ N(100, 1) are 1000/101, 1000/100, 1000/99 pc
+        StarInput in = StarDeriverTest.solarTwinAt10pc();
+        in.parallaxErrMas = 1.0;
+        double[][] q = run(new MonteCarloDeriver(DeriveSettings.defaults(), 4000, 1), in, 1L);
+        assertEquals(1000 / 101.0, q[0][0], 0.02);
+        assertEquals(10.0, q[0][1], 0.02);
+        assertEquals(1000 / 99.0, q[0][2], 0.02);
+    }
+
+    @Test
+    void monteCarloAndFirstOrderAgreeForAWellMeasuredStar() {
+        StarInput in = StarDeriverTest.solarTwinAt10pc();
+        in.parallaxErrMas = 0.5;
+        StarResult a = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
+        double[][] q = run(new MonteCarloDeriver(DeriveSettings.defaults(), 4000, 3), in, 42L);
+        assertEquals(a.teffErrK, (q[1][2] - q[1][0]) / 2, 0.1 * a.teffErrK, "Teff");
+        assertEquals(a.lumErrLsun, (q[2][2] - q[2][0]) / 2, 0.1 * a.lumErrLsun, "L");
+        assertEquals(a.radiusErrRsun, (q[3][2] - q[3][0]) / 2, 0.1 * a.radiusErrRsun, "R");
+        assertEquals(a.teffK, q[1][1], 0.2 * a.teffErrK, "median Teff");
+    }
+
+    @Test
+    void starsWithoutAResultGiveNoPercentilesAndBadDrawsAreRejected() {
+        double[][] q = run(new MonteCarloDeriver(DeriveSettings.defaults(), 16, 1), new StarInput(), 5L);
+        for (double[] row : q) {
+            assertTrue(Double.isNaN(row[0]) && Double.isNaN(row[1]) && Double.isNaN(row[2]));
+        }
+        assertThrows(IllegalArgumentException.class, () -> new MonteCarloDeriver(DeriveSettings.defaults(), 0, 1));
+    }
+
+    @Test
+    void posteriorSamplingReproducesThePosteriorPercentiles() {
+        // inverse-transform samples of the prior-based posterior have the posterior's own percentiles
+        EdsdPosterior post = EdsdPosterior.standard();
+        double[] exact = new double[3];
+        assertTrue(post.percentilesKpc(0.3, 0.25, 1.35, new double[] {StarDeriver.P16, 0.5, StarDeriver.P84}, exact));
+        int n = 20000;
+        double[] s = new double[n];
+        java.util.SplittableRandom r = new java.util.SplittableRandom(9);
+        for (int i = 0; i < n; i++) {
+            s[i] = post.quantileOfLast(r.nextDouble());
+        }
+        Arrays.sort(s);
+        assertEquals(exact[0], MonteCarloDeriver.quantile(s, n, StarDeriver.P16), 0.02 * exact[1]);
+        assertEquals(exact[1], MonteCarloDeriver.quantile(s, n, 0.5), 0.02 * exact[1]);
+        assertEquals(exact[2], MonteCarloDeriver.quantile(s, n, StarDeriver.P84), 0.02 * exact[1]);
+    }
+}
