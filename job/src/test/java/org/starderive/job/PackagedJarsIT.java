@@ -94,7 +94,18 @@ class PackagedJarsIT {
         List<Row> x = spark.read().parquet(outLocal.toString()).drop("flag_names").orderBy("star_id").collectAsList();
         List<Row> y = spark.read().parquet(outSubmit.toString()).drop("flag_names").orderBy("star_id").collectAsList();
         assertEquals(40, x.size());
-        assertEquals(x, y);
+        assertEquals(x.size(), y.size());
+        StringBuilder diff = new StringBuilder();
+        for (int i = 0; i < x.size(); i++) {
+            Row rx = x.get(i);
+            Row ry = y.get(i);
+            for (int c = 0; c < rx.length(); c++) {
+                if (!java.util.Objects.equals(rx.get(c), ry.get(c))) {
+                    diff.append(String.format("star %s column %s: local %s, submit %s%n", rx.get(0), rx.schema().fieldNames()[c], rx.get(c), ry.get(c)));
+                }
+            }
+        }
+        assertEquals("", diff.toString());
     }
 
     @Test
