@@ -163,6 +163,18 @@ public final class DeriveJob {
             s.rowsOut = got.getKey().rows;
             s.rowsPerFlag = got.getValue();
             s.output = committer.output().toString();
+            List<Map<String, Object>> tables = new ArrayList<>();
+            for (InputTable t : twoTables ? List.of(astro, phot) : List.of(astro)) {
+                Map<String, Object> m = new LinkedHashMap<>();
+                m.put("role", t.role());
+                m.put("paths", t.paths());
+                m.put("format", t.format());
+                m.put("files", t.fileCount());
+                m.put("rows", t.rowsFromFooters() >= 0 ? t.rowsFromFooters() : null);
+                m.put("partition_columns", t.partitionColumns());
+                tables.add(m);
+            }
+            facts.put("input_tables", tables);
             facts.put("input_rows", expected.rows);
             facts.put("input_files", twoTables ? astro.fileCount() + phot.fileCount() : astro.fileCount());
             facts.put("output_rows", s.rowsOut);

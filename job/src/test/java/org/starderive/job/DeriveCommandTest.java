@@ -132,6 +132,10 @@ class DeriveCommandTest {
         // the manifest names the relations used and the counts
         String manifest = Files.readString(out.resolve(RunManifest.FILE_NAME));
         assertTrue(manifest.contains("\"output_rows\" : 60") && manifest.contains("Casagrande et al. 2010"), manifest);
+        com.fasterxml.jackson.databind.JsonNode m = new com.fasterxml.jackson.databind.ObjectMapper().readTree(manifest);
+        assertEquals(60, m.get("input_tables").get(0).get("rows").asLong());
+        assertEquals(60, m.get("rows_per_flag").size() > 0 ? m.get("output_rows").asLong() : -1);
+        assertTrue(m.get("config").get("physics_resolved").get("prior_length_kpc").asDouble() > 0);
     }
 
     @Test
