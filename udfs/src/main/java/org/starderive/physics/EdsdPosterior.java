@@ -50,6 +50,7 @@ public final class EdsdPosterior {
      * {@code outKpc}. Returns false (and writes NaN) when the inputs have no posterior: σ ≤ 0 or non-finite values.
      */
     public boolean percentilesKpc(double parallaxMas, double sigmaMas, double lengthKpc, double[] probs, double[] outKpc) {
+        lastValid = false; // never sample another star's grid
         double mode = ParallaxDistance.edsdModeKpc(parallaxMas, sigmaMas, lengthKpc);
         if (!(mode > 0) || !Double.isFinite(mode)) {
             java.util.Arrays.fill(outKpc, 0, probs.length, Double.NaN);
@@ -124,18 +125,24 @@ public final class EdsdPosterior {
             while (i < intervals - 1 && cumulative[i + 1] < target) {
                 i++;
             }
-            // density at the ends of interval i, recovered from the cumulative sums is not possible: recompute
-            double ua = uLo + i * h;
-            double wa = Math.exp(logDensityU(ua, parallaxMas, sigmaMas, lengthKpc) - max);
-            double wb = Math.exp(logDensityU(ua + h, parallaxMas, sigmaMas, lengthKpc) - max);
-            double rem = Math.max(0, target - cumulative[i]);
-            double slope = (wb - wa) / (2 * h);
-            double disc = wa * wa + 4 * slope * rem;
-            double t = disc > 0 ? 2 * rem / (wa + Math.sqrt(disc)) : h;
-            t = Math.max(0, Math.min(h, t));
-            outKpc[k] = Math.exp(ua + t);
+            outKpc[k] = invert(i, target);
         }
         return true;
+    }
+
+    /**
+     * The distance in kpc inside interval {@code i} of the last grid where the cumulative integral reaches
+     * {@code target}: the trapezoid's density is linear there, so its integral is a quadratic, solved exactly.
+     */
+    private double invert(int i, double target) {
+        double ua = lastULo + i * lastH;
+        double wa = Math.exp(logDensityU(ua, lastParallax, lastSigma, lastLength) - lastMax);
+        double wb = Math.exp(logDensityU(ua + lastH, lastParallax, lastSigma, lastLength) - lastMax);
+        double rem = Math.max(0, target - cumulative[i]);
+        double slope = (wb - wa) / (2 * lastH);
+        double disc = wa * wa + 4 * slope * rem;
+        double t = disc > 0 ? 2 * rem / (wa + Math.sqrt(disc)) : lastH;
+        return Math.exp(ua + Math.max(0, Math.min(lastH, t)));
     }
 
     /**
@@ -157,13 +164,6 @@ public final class EdsdPosterior {
                 hi = mid;
             }
         }
-        double ua = lastULo + lo * lastH;
-        double wa = Math.exp(logDensityU(ua, lastParallax, lastSigma, lastLength) - lastMax);
-        double wb = Math.exp(logDensityU(ua + lastH, lastParallax, lastSigma, lastLength) - lastMax);
-        double rem = Math.max(0, target - cumulative[lo]);
-        double slope = (wb - wa) / (2 * lastH);
-        double disc = wa * wa + 4 * slope * rem;
-        double t = disc > 0 ? 2 * rem / (wa + Math.sqrt(disc)) : lastH;
-        return Math.exp(ua + Math.max(0, Math.min(lastH, t)));
+        return invert(lo, target);
     }
 }
