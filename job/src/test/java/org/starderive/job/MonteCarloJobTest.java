@@ -74,6 +74,10 @@ class MonteCarloJobTest {
             spark.conf().unset(TestHooks.FAIL_FIRST_ATTEMPT);
         }
         assertEquals(a, c, "a task that failed once and was retried writes the same numbers");
+        // and the whole catalogue, every column, equals the clean run's
+        List<Row> wholeA = spark.read().parquet(tmp.resolve("mc-a").toString()).orderBy("star_id").collectAsList();
+        List<Row> wholeC = spark.read().parquet(tmp.resolve("mc-c").toString()).orderBy("star_id").collectAsList();
+        assertEquals(wholeA, wholeC, "retried run's output equals the clean run's");
         List<Row> d = derive(small, tmp.resolve("mc-d"), 32, 6).select("star_id", rest).orderBy("star_id").collectAsList();
         assertTrue(!a.equals(d), "another seed, other numbers");
         String manifest = Files.readString(tmp.resolve("mc-a").resolve(RunManifest.FILE_NAME));
