@@ -61,5 +61,4 @@ public enum Band {
         throw new IllegalArgumentException("Unknown band: '" + suffix + "' (must be one of b v rc ic j h ks g bp rp)");
     }
 
-    static Band at(int ordinal) { return VALUES[ordinal]; }
 }

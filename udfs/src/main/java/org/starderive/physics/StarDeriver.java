@@ -418,9 +418,9 @@ public final class StarDeriver {
         if (inverse) {
             if (p > 0) {
                 out.distMethod = StarResult.DistanceMethod.INVERSE_PARALLAX;
-                out.distPc = 1000.0 / p;
-                out.distLoPc = 1000.0 / (p + err);
-                out.distHiPc = p > err ? 1000.0 / (p - err) : Double.NaN;
+                out.distPc = ParallaxDistance.inverseParallaxPc(p);
+                out.distLoPc = ParallaxDistance.inverseParallaxPc(p + err);
+                out.distHiPc = ParallaxDistance.inverseParallaxPc(p - err); // NaN when p <= err: no upper bound
             }
         } else if (settings.posteriorPercentiles()) {
             if (posterior.percentilesKpc(p, err, lengthKpc, probs, quantiles)) {
