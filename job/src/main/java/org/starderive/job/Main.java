@@ -220,12 +220,8 @@ public final class Main implements Runnable {
         public Integer call() {
             return Sessions.withSession(spark.master, "starderive report", session -> {
                 long t0 = System.nanoTime();
-                org.starderive.report.QaReport.Result r;
-                try {
-                    r = org.starderive.report.QaReport.run(session, catalog, out);
-                } catch (java.io.IOException e) {
-                    throw JobException.output("Report " + out + ": cannot be written (" + e.getMessage() + ")");
-                }
+                org.starderive.report.QaReport.Result r = writingReport(out,
+                        () -> org.starderive.report.QaReport.run(session, catalog, out));
                 PrintWriter w = spec.commandLine().getOut();
                 w.printf("starderive report: %,d rows, %,d in the HR diagram, %.1f s%n", r.rows, r.hrStars,
                         (System.nanoTime() - t0) / 1e9);
@@ -258,12 +254,8 @@ public final class Main implements Runnable {
         @Override
         public Integer call() {
             return Sessions.withSession(spark.master, "starderive recovery", session -> {
-                org.starderive.report.RecoveryReport.Result r;
-                try {
-                    r = org.starderive.report.RecoveryReport.run(session, derived, truth, out);
-                } catch (java.io.IOException e) {
-                    throw JobException.output("Report " + out + ": cannot be written (" + e.getMessage() + ")");
-                }
+                org.starderive.report.RecoveryReport.Result r = writingReport(out,
+                        () -> org.starderive.report.RecoveryReport.run(session, derived, truth, out));
                 PrintWriter w = spec.commandLine().getOut();
                 w.printf("starderive recovery: %,d stars%n", r.stars);
                 r.clean.forEach((q, s) -> w.printf("  %-7s n=%d bias %+.2f%% scatter %.2f%% coverage %.3f%n", q, s.n,
@@ -312,6 +304,20 @@ public final class Main implements Runnable {
                 o.flush();
                 return 0;
             });
+        }
+    }
+
+    /** Work that writes a report folder. */
+    interface ReportWork<T> {
+        T run() throws java.io.IOException;
+    }
+
+    /** Runs report work; an I/O failure of the report folder becomes an output error (exit 4) naming the folder. */
+    static <T> T writingReport(String out, ReportWork<T> work) {
+        try {
+            return work.run();
+        } catch (java.io.IOException e) {
+            throw JobException.output("Report " + out + ": cannot be written (" + e.getMessage() + ")");
         }
     }
 

@@ -80,6 +80,14 @@ class StandaloneClusterIT {
         return p;
     }
 
+    /** The thin jar's derive, through Spark's submit entry point, against the cluster. */
+    private Process submit(Path home, Path log, String master, Path in, Path out) throws IOException {
+        return start(home, log, "org.apache.spark.deploy.SparkSubmit", "--master", master,
+                "--conf", "spark.executor.memory=700m", "--conf", "spark.driver.host=127.0.0.1",
+                "--class", "org.starderive.job.Main", prop("starderive.thinJar"),
+                "derive", "--input", in.toString(), "--output", out.toString());
+    }
+
     private static void waitFor(Path log, String text, int seconds) throws Exception {
         long end = System.nanoTime() + TimeUnit.SECONDS.toNanos(seconds);
         while (System.nanoTime() < end) {
@@ -128,10 +136,7 @@ class StandaloneClusterIT {
             // 1. the thin jar on the cluster equals local mode
             Path clean = tmp.resolve("out-cluster");
             Path slog = tmp.resolve("submit.log");
-            Process submit = start(home, slog, "org.apache.spark.deploy.SparkSubmit", "--master", master,
-                    "--conf", "spark.executor.memory=700m", "--conf", "spark.driver.host=127.0.0.1",
-                    "--class", "org.starderive.job.Main", prop("starderive.thinJar"),
-                    "derive", "--input", in.toString(), "--output", clean.toString());
+            Process submit = submit(home, slog, master, in, clean);
             assertTrue(submit.waitFor(8, TimeUnit.MINUTES), "submit finished");
             assertEquals(0, submit.exitValue(), Files.readString(slog));
             assertEqualCatalogues(spark, local, clean);
@@ -139,10 +144,7 @@ class StandaloneClusterIT {
             // 2. the same job, losing a Worker (and its executor) while it runs
             Path lost = tmp.resolve("out-lost-worker");
             Path slog2 = tmp.resolve("submit2.log");
-            Process submit2 = start(home, slog2, "org.apache.spark.deploy.SparkSubmit", "--master", master,
-                    "--conf", "spark.executor.memory=700m", "--conf", "spark.driver.host=127.0.0.1",
-                    "--class", "org.starderive.job.Main", prop("starderive.thinJar"),
-                    "derive", "--input", in.toString(), "--output", lost.toString());
+            Process submit2 = submit(home, slog2, master, in, lost);
             // kill worker 0 once the job is writing its staging output
             long end = System.nanoTime() + TimeUnit.MINUTES.toNanos(5);
             boolean killed = false;
