@@ -89,6 +89,7 @@ public final class DeriveJob {
         boolean twoTables = !req.photometry.isEmpty();
         InputTable astro = InputTable.open(spark, twoTables ? "astrometry" : "table", req.input, req.inputFormat);
         InputTable phot = twoTables ? InputTable.open(spark, "photometry", req.photometry, req.inputFormat) : null;
+        seconds.put("open_inputs", (System.nanoTime() - t0) / 1e9);
         List<String> partitionColumns = astro.partitionColumns();
         if (req.writeMode == OutputCommitter.Mode.REPLACE_PARTITIONS && partitionColumns.isEmpty()) {
             throw JobException.config("Invalid --write-mode replace-partitions: input " + req.input
@@ -118,8 +119,11 @@ public final class DeriveJob {
                 throw JobException.input("Input " + name + ": missing column '" + idColumn
                         + "' (rule: the star id column must exist; set columns.star_id in the config)");
             }
-            joined = pipeline.markDuplicates(astro.data(), name);
-            expected = RowCensus.of(astro.data().select(col(idColumn)), idColumn);
+            long ts = System.nanoTime();
+            DerivePipeline.IdScan scan = pipeline.scanIds(astro.data(), name);
+            seconds.put("scan_ids", (System.nanoTime() - ts) / 1e9);
+            joined = pipeline.markDuplicates(astro.data(), scan);
+            expected = scan.census;
         }
         if (expected.rows == 0) {
             throw JobException.input("Input " + req.input + ": the table has no rows (rule: the input must not be empty)");
@@ -140,17 +144,7 @@ public final class DeriveJob {
             if (req.outputFormat.equals("csv")) {
                 w.option("header", "true").csv(staging);
             } else {
-                w = w.option("compression", config.compression().equals("none") ? "uncompressed" : config.compression());
-                // derived doubles are nearly all distinct: a dictionary is built, then abandoned (profiled as ~22 % of a
-                // derive run). Plain encoding for them; passed-through input columns keep Parquet's default.
-                for (org.starderive.udf.DerivedColumn c : org.starderive.udf.DerivedSchema.COLUMNS) {
-                    if (c.sqlType().equals("double")) {
-                        w = w.option("parquet.enable.dictionary#" + c.name(), "false");
-                    }
-                }
-                for (org.starderive.udf.DerivedColumn c : org.starderive.udf.StarMonteCarloUdf.COLUMNS) {
-                    w = w.option("parquet.enable.dictionary#" + c.name(), "false");
-                }
+                w = ParquetWriteOptions.apply(w, toWrite.schema(), config.compression());
                 w.parquet(staging);
             }
             seconds.put("derive_and_write", (System.nanoTime() - t1) / 1e9);

@@ -7,6 +7,7 @@ import static org.apache.spark.sql.functions.concat_ws;
 import static org.apache.spark.sql.functions.count;
 import static org.apache.spark.sql.functions.lit;
 import static org.apache.spark.sql.functions.row_number;
+import static org.apache.spark.sql.functions.sum;
 import static org.apache.spark.sql.functions.when;
 
 import java.util.ArrayList;
@@ -131,18 +132,56 @@ public final class DerivePipeline {
                 .withColumn(DUP_COL, count(lit(1)).over(byId).gt(1));
     }
 
-    /** Marks duplicate ids of a single table: a small aggregate of the repeated ids, joined back (broadcast if small). */
-    public Dataset<Row> markDuplicates(Dataset<Row> d, String table) {
+    /** What one pass over a single table's ids found: its census and how many ids occur more than once. */
+    public static final class IdScan {
+        public final RowCensus census;
+        public final long repeatedIds;
+        private final Dataset<Row> counts;
+
+        IdScan(RowCensus census, long repeatedIds, Dataset<Row> counts) {
+            this.census = census;
+            this.repeatedIds = repeatedIds;
+            this.counts = counts;
+        }
+    }
+
+    /**
+     * One pass over the id column of a single table (Parquet reads just that column): copies per id, then in the
+     * same job the table's census (rows and id-hash sums, as {@link RowCensus#of}) and the number of repeated ids.
+     * This replaces two passes (census, then duplicate count) — the repeated ids themselves are only gathered, by a
+     * second pass, when there are any.
+     */
+    public IdScan scanIds(Dataset<Row> d, String table) {
         if (!d.schema().getFieldIndex(idColumn).isDefined()) {
             throw missing(table, idColumn, "the star id; set columns.star_id in the config");
         }
-        Dataset<Row> dups = d.groupBy(col(idColumn)).count().filter(col("count").gt(1))
-                .select(col(idColumn).as("__dup_id"), lit(true).as(DUP_COL));
-        long nDupIds = dups.count();
-        if (nDupIds == 0) {
+        Dataset<Row> counts = d.groupBy(col(idColumn)).agg(count(lit(1)).as("n"));
+        Column n = col("n");
+        Column id = col(idColumn);
+        Row r = counts.agg(coalesce(sum(n), lit(0L)),
+                coalesce(sum(n.multiply(RowCensus.lo(id))), lit(0L)),
+                coalesce(sum(n.multiply(RowCensus.hi(id))), lit(0L)),
+                coalesce(sum(when(n.gt(1).and(id.isNotNull()), 1L).otherwise(0L)), lit(0L))).first();
+        return new IdScan(new RowCensus(r.getLong(0), r.getLong(1), r.getLong(2)), r.getLong(3), counts);
+    }
+
+    /**
+     * Marks duplicate ids of a single table: the repeated ids (from {@link #scanIds}) joined back — collected and
+     * broadcast when there are at most 10⁶ of them. Null ids are never marked (null matches nothing).
+     */
+    public Dataset<Row> markDuplicates(Dataset<Row> d, IdScan scan) {
+        if (scan.repeatedIds == 0) {
             return d.withColumn(DUP_COL, lit(false));
         }
-        Dataset<Row> small = nDupIds <= 1_000_000 ? broadcast(dups) : dups;
+        Dataset<Row> dups = scan.counts.filter(col("n").gt(1).and(col(idColumn).isNotNull()))
+                .select(col(idColumn).as("__dup_id"), lit(true).as(DUP_COL));
+        Dataset<Row> small;
+        if (scan.repeatedIds <= 1_000_000) {
+            List<Row> ids = dups.collectAsList();
+            small = broadcast(d.sparkSession().createDataFrame(ids, dups.schema()));
+        } else {
+            small = dups;
+        }
         Dataset<Row> j = d.join(small, d.col(idColumn).equalTo(small.col("__dup_id")), "left");
         return j.drop("__dup_id").withColumn(DUP_COL, coalesce(col(DUP_COL), lit(false)));
     }

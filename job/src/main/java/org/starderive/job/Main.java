@@ -268,8 +268,8 @@ public final class Main implements Runnable {
     }
 
     @Command(name = "rewrite", hidden = true, mixinStandardHelpOptions = true,
-            description = "Benchmark helper: read a Parquet table and write it again with the same partitioning and "
-                    + "compression (the I/O floor of a derive run).")
+            description = "Benchmark helper: read a Parquet table and write it again with the same partitioning, "
+                    + "compression and writer settings as derive (the I/O floor of a derive run).")
     static final class Rewrite implements Callable<Integer> {
         @CommandLine.Spec
         CommandLine.Model.CommandSpec spec;
@@ -293,8 +293,9 @@ public final class Main implements Runnable {
         public Integer call() {
             return Sessions.withSession(spark.master, "starderive rewrite", session -> {
                 long t0 = System.nanoTime();
-                org.apache.spark.sql.DataFrameWriter<org.apache.spark.sql.Row> w = session.read().parquet(input).write()
-                        .mode(org.apache.spark.sql.SaveMode.ErrorIfExists).option("compression", compression);
+                org.apache.spark.sql.Dataset<org.apache.spark.sql.Row> in = session.read().parquet(input);
+                org.apache.spark.sql.DataFrameWriter<org.apache.spark.sql.Row> w = ParquetWriteOptions.apply(
+                        in.write().mode(org.apache.spark.sql.SaveMode.ErrorIfExists), in.schema(), compression);
                 if (!partitionBy.isEmpty()) {
                     w = w.partitionBy(partitionBy.toArray(new String[0]));
                 }

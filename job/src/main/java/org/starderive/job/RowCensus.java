@@ -36,9 +36,9 @@ public final class RowCensus {
         this.hashHi = hashHi;
     }
 
-    private static Column lo(Column id) { return xxhash64(id).bitwiseAND(lit(0xFFFFFFFFL)); }
+    static Column lo(Column id) { return xxhash64(id).bitwiseAND(lit(0xFFFFFFFFL)); }
 
-    private static Column hi(Column id) { return shiftrightunsigned(xxhash64(id), 32); }
+    static Column hi(Column id) { return shiftrightunsigned(xxhash64(id), 32); }
 
     static List<Column> aggregates(Column id) {
         List<Column> a = new ArrayList<>();

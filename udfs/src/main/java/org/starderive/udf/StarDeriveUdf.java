@@ -36,8 +36,34 @@ public final class StarDeriveUdf implements UDF1<Row, Row> {
         final StarDeriver deriver;
         final StarInputReader reader = new StarInputReader();
         final StarResult out = new StarResult();
+        /** Texts that depend only on a bit mask (relations used, flags), built once per mask: profiled at ~2 % of a
+         *  derive run when built per row. Bounded, as a hostile input cannot make many masks but we do not rely on it. */
+        final java.util.HashMap<Long, String> relationText = new java.util.HashMap<>();
+        final java.util.HashMap<Long, String[]> flagNames = new java.util.HashMap<>();
 
         Work(DeriveSettings s) { deriver = new StarDeriver(s); }
+
+        String relations(long mask) {
+            String t = relationText.get(mask);
+            if (t == null && !relationText.containsKey(mask)) {
+                t = org.starderive.physics.TeffRelations.describe(mask);
+                if (relationText.size() < 65_536) {
+                    relationText.put(mask, t);
+                }
+            }
+            return t;
+        }
+
+        String[] flags(long mask) {
+            String[] t = flagNames.get(mask);
+            if (t == null) {
+                t = QualityFlag.nameArray(mask);
+                if (flagNames.size() < 65_536) {
+                    flagNames.put(mask, t);
+                }
+            }
+            return t;
+        }
     }
 
     public StarDeriveUdf(DeriveSettings settings) {
@@ -78,7 +104,7 @@ public final class StarDeriveUdf implements UDF1<Row, Row> {
     public Row call(Row row) {
         Work w = work();
         StarResult o = w.deriver.derive(w.reader.read(row), w.out);
-        return toRow(o);
+        return toRow(o, w.relations(o.teffRelations), w.flags(o.flags));
     }
 
     private static Double box(double v) {
@@ -87,6 +113,10 @@ public final class StarDeriveUdf implements UDF1<Row, Row> {
 
     /** The result as a Row in {@link DerivedSchema} order. */
     public static Row toRow(StarResult o) {
+        return toRow(o, o.teffFrom(), QualityFlag.nameArray(o.flags));
+    }
+
+    private static Row toRow(StarResult o, String teffFrom, String[] flagNames) {
         Object[] v = new Object[DerivedSchema.COLUMNS.size()];
         int i = 0;
         v[i++] = box(o.parallaxCorrMas);
@@ -105,7 +135,7 @@ public final class StarDeriveUdf implements UDF1<Row, Row> {
         v[i++] = o.lumClass == null ? null : o.lumClass.label();
         v[i++] = box(o.teffK);
         v[i++] = box(o.teffErrK);
-        v[i++] = o.teffFrom();
+        v[i++] = teffFrom;
         v[i++] = box(o.teffChi2);
         v[i++] = box(o.bcV);
         v[i++] = box(o.bcVErr);
@@ -127,7 +157,7 @@ public final class StarDeriveUdf implements UDF1<Row, Row> {
         v[i++] = box(o.angDiamErrMas);
         v[i++] = box(o.angDiamSbrMas);
         v[i++] = o.flags;
-        v[i++] = QualityFlag.nameArray(o.flags);
+        v[i++] = flagNames;
         if (i != v.length) {
             throw new IllegalStateException("Result row has " + i + " fields, schema " + v.length);
         }
