@@ -125,7 +125,7 @@ public final class JobConfig {
     private static final Set<String> COMPRESSIONS = Set.of("snappy", "zstd", "gzip", "none");
     /** physics keys, each one line of DeriveSettings. */
     private static final Set<String> PHYSICS_KEYS = Set.of("parallax_zero_point_mas", "parallax_snr_min",
-            "parallax_max_mas", "distance_method", "prior_length_kpc", "posterior_percentiles", "r_v", "ebv_default",
+            "parallax_max_mas", "distance_snr_min", "distance_method", "prior_length_kpc", "posterior_percentiles", "r_v", "ebv_default",
             "ebv_err_default", "feh_default", "feh_err_default", "allow_extrapolation", "teff_disagree_p",
             "diameter_disagree_sigma", "giant_logg_prior", "giant_logg_prior_err", "mag_min", "mag_max", "relations");
 
@@ -364,6 +364,7 @@ public final class JobConfig {
         DeriveSettings.Builder b = DeriveSettings.builder()
                 .parallaxZeroPointMas(number(p, path, "parallax_zero_point_mas", DeriveSettings.PARALLAX_ZERO_POINT_MAS_DEFAULT))
                 .parallaxSnrMin(number(p, path, "parallax_snr_min", DeriveSettings.PARALLAX_SNR_MIN_DEFAULT))
+                .distanceSnrMin(number(p, path, "distance_snr_min", DeriveSettings.DISTANCE_SNR_MIN_DEFAULT))
                 .parallaxMaxMas(number(p, path, "parallax_max_mas", DeriveSettings.PARALLAX_MAX_MAS_DEFAULT))
                 .priorLengthKpc(number(p, path, "prior_length_kpc", DeriveSettings.PRIOR_LENGTH_KPC_DEFAULT))
                 .posteriorPercentiles(bool(p, path, "posterior_percentiles", DeriveSettings.POSTERIOR_PERCENTILES_DEFAULT))
@@ -430,6 +431,7 @@ public final class JobConfig {
         DeriveSettings d = settings;
         s.put("parallax_zero_point_mas", d.parallaxZeroPointMas());
         s.put("parallax_snr_min", d.parallaxSnrMin());
+        s.put("distance_snr_min", d.distanceSnrMin());
         s.put("parallax_max_mas", d.parallaxMaxMas());
         s.put("distance_method", d.distanceMethod().name().toLowerCase());
         s.put("prior_length_kpc", d.priorLengthKpc());

@@ -88,36 +88,42 @@ class MonteCarloJobTest {
     @Test
     void intervalsCoverTheTruthAndAgreeWithFirstOrderWhereItHolds() {
         Dataset<Row> derived = derive(survey.resolve("stars"), tmp.resolve("mc-full"), 64, 1);
+        // Bins of parallax significance, each conditioned the way its intervals claim coverage. Posterior intervals
+        // (observed significance 4-5, the lowest bin with a result) claim it given the data: grouped by the observed
+        // significance. Inverse-parallax intervals (observed >= 5) are confidence intervals, which claim it for every
+        // true parallax: grouped by the true significance (grouping them by the observed one selects stars scattered
+        // upwards — a Lutz-Kelker bias: 0.61 at observed >= 10 in a first run). Bins hold >= 400 stars (binomial
+        // 1-sigma about 0.02 at 68 %).
         Dataset<Row> j = derived.join(spark.read().parquet(survey.resolve("truth").toString()).drop("tile"), "star_id")
-                .withColumn("snr", org.apache.spark.sql.functions.expr("true_parallax_mas / parallax_err_mas"));
+                .withColumn("snr", org.apache.spark.sql.functions.expr("parallax_corr_mas / parallax_err_mas"))
+                .withColumn("snr_true", org.apache.spark.sql.functions.expr("true_parallax_mas / parallax_err_mas"));
         j.cache();
         String[][] q = {{"dist", "pc", "true_dist_pc"}, {"teff", "k", "true_teff_k"}, {"lum", "lsun", "true_lum_lsun"},
                 {"radius", "rsun", "true_radius_rsun"}};
-        // coverage where the data, not the prior, decide: true parallax/error >= 5, and no flag that says Teff must not
-        // be trusted (colour out of range, extrapolated or disagreeing Teff, invalid or sentinel input)
+        // stars without a flag that says Teff must not be trusted (colour out of range, extrapolated or disagreeing
+        // Teff, invalid or sentinel input)
         long untrusted = org.starderive.physics.QualityFlag.COLOUR_OUT_OF_RANGE.mask()
                 | org.starderive.physics.QualityFlag.TEFF_EXTRAPOLATED.mask()
                 | org.starderive.physics.QualityFlag.TEFF_COLOURS_DISAGREE.mask()
                 | org.starderive.physics.QualityFlag.INPUT_INVALID.mask()
                 | org.starderive.physics.QualityFlag.MAGNITUDE_SENTINEL.mask();
-        Dataset<Row> usable = j.filter("(flags & " + untrusted + ") = 0 AND snr >= 5");
+        Dataset<Row> usable = j.filter("(flags & " + untrusted + ") = 0");
+        // no distance is given below the distance minimum (4): the lowest bin with a result is 4-5
+        long below = j.filter("snr < 4 AND dist_p50_pc IS NOT NULL").count();
+        assertEquals(0, below, "no distance below parallax significance 4");
         StringBuilder report = new StringBuilder();
-        for (String[] x : q) {
-            String lo = x[0] + "_p16_" + x[1];
-            String hi = x[0] + "_p84_" + x[1];
-            Row r = usable.filter(lo + " IS NOT NULL").selectExpr("count(*)",
-                    "avg(CASE WHEN " + x[2] + " BETWEEN " + lo + " AND " + hi + " THEN 1D ELSE 0D END)").first();
-            double cov = r.getDouble(1);
-            report.append(String.format("%s n=%d cov=%.3f; ", x[0], r.getLong(0), cov));
-            assertTrue(r.getLong(0) > 1000, report.toString());
-            assertTrue(cov >= 0.63 && cov <= 0.73, x[0] + " coverage " + cov + " — " + report);
-        }
-        // the parallax-significance bins 5-10 and above 10 separately, for distance
-        for (String bin : List.of("snr >= 5 AND snr < 10", "snr >= 10")) {
-            Row r = usable.filter(bin).selectExpr("count(*)",
-                    "avg(CASE WHEN true_dist_pc BETWEEN dist_p16_pc AND dist_p84_pc THEN 1D ELSE 0D END)").first();
-            report.append(String.format("dist [%s] n=%d cov=%.3f; ", bin, r.getLong(0), r.getDouble(1)));
-            assertTrue(r.getDouble(1) >= 0.63 && r.getDouble(1) <= 0.73, report.toString());
+        List<String> bins = List.of("TRUE", "snr >= 4 AND snr < 5", "snr >= 5 AND snr_true >= 5");
+        for (String bin : bins) {
+            for (String[] x : q) {
+                String lo = x[0] + "_p16_" + x[1];
+                String hi = x[0] + "_p84_" + x[1];
+                Row r = usable.filter(bin).filter(lo + " IS NOT NULL").selectExpr("count(*)",
+                        "avg(CASE WHEN " + x[2] + " BETWEEN " + lo + " AND " + hi + " THEN 1D ELSE 0D END)").first();
+                double cov = r.getLong(0) == 0 ? Double.NaN : r.getDouble(1);
+                report.append(String.format("[%s] %s n=%d cov=%.3f; ", bin.equals("TRUE") ? "all" : bin, x[0], r.getLong(0), cov));
+                assertTrue(r.getLong(0) >= 100, report.toString());
+                assertTrue(cov >= 0.63 && cov <= 0.73, x[0] + " coverage " + cov + " in " + bin + " — " + report);
+            }
         }
         // analytic and Monte Carlo errors agree within 10 % for high-significance, in-range stars
         Dataset<Row> good = j.filter("snr > 20 AND (flags & " + (org.starderive.physics.QualityFlag.COLOUR_OUT_OF_RANGE.mask()

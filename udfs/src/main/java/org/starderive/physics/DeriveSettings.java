@@ -24,6 +24,12 @@ public final class DeriveSettings implements Serializable {
 
     public static final double PARALLAX_ZERO_POINT_MAS_DEFAULT = 0.0;
     public static final double PARALLAX_SNR_MIN_DEFAULT = 5.0;
+    /**
+     * ϖ/σ_ϖ below which no distance is given at all (our choice, from the recovery of the synthetic survey: below 4
+     * the 68 % posterior intervals under the default prior covered the truth in only 29–51 % of stars; 0 gives every
+     * star a distance).
+     */
+    public static final double DISTANCE_SNR_MIN_DEFAULT = 4.0;
     /** Largest stellar parallax known is Proxima Cen's, 768 mas (common practice: anything above 800 mas is a unit error). */
     public static final double PARALLAX_MAX_MAS_DEFAULT = 800.0;
     public static final DistanceMethod DISTANCE_METHOD_DEFAULT = DistanceMethod.AUTO;
@@ -50,6 +56,7 @@ public final class DeriveSettings implements Serializable {
 
     private final double parallaxZeroPointMas;
     private final double parallaxSnrMin;
+    private final double distanceSnrMin;
     private final double parallaxMaxMas;
     private final DistanceMethod distanceMethod;
     private final double priorLengthKpc;
@@ -72,6 +79,10 @@ public final class DeriveSettings implements Serializable {
     private DeriveSettings(Builder b) {
         this.parallaxZeroPointMas = requireFinite("parallax zero point", b.parallaxZeroPointMas, "mas");
         this.parallaxSnrMin = requirePositive("parallax SNR threshold", b.parallaxSnrMin, "");
+        if (!(b.distanceSnrMin >= 0 && b.distanceSnrMin <= 1000)) {
+            throw new IllegalArgumentException("Invalid distance SNR minimum: " + b.distanceSnrMin + " (must be between 0 and 1000)");
+        }
+        this.distanceSnrMin = b.distanceSnrMin;
         this.parallaxMaxMas = requirePositive("largest plausible parallax", b.parallaxMaxMas, "mas");
         if (b.distanceMethod == null) {
             throw new IllegalArgumentException("Invalid distance method: null (must be one of auto, inverse, edsd)");
@@ -144,6 +155,7 @@ public final class DeriveSettings implements Serializable {
         Builder b = new Builder();
         b.parallaxZeroPointMas = parallaxZeroPointMas;
         b.parallaxSnrMin = parallaxSnrMin;
+        b.distanceSnrMin = distanceSnrMin;
         b.parallaxMaxMas = parallaxMaxMas;
         b.distanceMethod = distanceMethod;
         b.priorLengthKpc = priorLengthKpc;
@@ -166,6 +178,8 @@ public final class DeriveSettings implements Serializable {
 
     public double parallaxZeroPointMas() { return parallaxZeroPointMas; }
     public double parallaxSnrMin() { return parallaxSnrMin; }
+    /** ϖ/σ_ϖ below which no distance is given (0: always one). */
+    public double distanceSnrMin() { return distanceSnrMin; }
     public double parallaxMaxMas() { return parallaxMaxMas; }
     public DistanceMethod distanceMethod() { return distanceMethod; }
     public double priorLengthKpc() { return priorLengthKpc; }
@@ -194,6 +208,7 @@ public final class DeriveSettings implements Serializable {
     public static final class Builder {
         private double parallaxZeroPointMas = PARALLAX_ZERO_POINT_MAS_DEFAULT;
         private double parallaxSnrMin = PARALLAX_SNR_MIN_DEFAULT;
+        private double distanceSnrMin = DISTANCE_SNR_MIN_DEFAULT;
         private double parallaxMaxMas = PARALLAX_MAX_MAS_DEFAULT;
         private DistanceMethod distanceMethod = DISTANCE_METHOD_DEFAULT;
         private double priorLengthKpc = PRIOR_LENGTH_KPC_DEFAULT;
@@ -216,6 +231,7 @@ public final class DeriveSettings implements Serializable {
 
         public Builder parallaxZeroPointMas(double v) { parallaxZeroPointMas = v; return this; }
         public Builder parallaxSnrMin(double v) { parallaxSnrMin = v; return this; }
+        public Builder distanceSnrMin(double v) { distanceSnrMin = v; return this; }
         public Builder parallaxMaxMas(double v) { parallaxMaxMas = v; return this; }
         public Builder distanceMethod(DistanceMethod v) { distanceMethod = v; return this; }
         public Builder priorLengthKpc(double v) { priorLengthKpc = v; return this; }

@@ -411,6 +411,9 @@ public final class StarDeriver {
         if (!(snr >= settings.parallaxSnrMin())) {
             flags |= PARALLAX_LOW_SNR.mask();
         }
+        if (settings.distanceSnrMin() > 0 && !(snr >= settings.distanceSnrMin())) {
+            return flags | DISTANCE_WITHHELD.mask();
+        }
         DeriveSettings.DistanceMethod m = settings.distanceMethod();
         boolean inverse = m == DeriveSettings.DistanceMethod.INVERSE
                 || (m == DeriveSettings.DistanceMethod.AUTO && p > 0 && snr >= settings.parallaxSnrMin());

@@ -104,19 +104,39 @@ class StarDeriverTest {
     void lowSignificanceParallaxUsesThePosteriorAndIsFlagged() {
         StarInput in = solarTwinAt10pc();
         in.parallaxMas = 1.0;
-        in.parallaxErrMas = 0.5;
+        in.parallaxErrMas = 0.22; // ϖ/σ = 4.5: below the inverse-parallax threshold, above the distance minimum
         StarResult r = deriver.derive(in, out);
         assertTrue(r.has(PARALLAX_LOW_SNR));
+        assertFalse(r.has(DISTANCE_WITHHELD));
         assertEquals(StarResult.DistanceMethod.EDSD_MEDIAN, r.distMethod);
         assertTrue(r.distLoPc < r.distPc && r.distPc < r.distHiPc);
     }
 
     @Test
-    void negativeParallaxStillGetsAPosteriorDistance() {
+    void insignificantParallaxGetsNoDistanceByDefaultButTeffAndDiameterStill() {
+        StarInput in = solarTwinAt10pc();
+        in.parallaxMas = 1.0;
+        in.parallaxErrMas = 0.5; // ϖ/σ = 2 < distance_snr_min 4
+        StarResult r = deriver.derive(in, out);
+        assertTrue(r.has(DISTANCE_WITHHELD) && r.has(PARALLAX_LOW_SNR));
+        assertEquals(StarResult.DistanceMethod.NONE, r.distMethod);
+        assertTrue(Double.isNaN(r.distPc) && Double.isNaN(r.lumLsun) && Double.isNaN(r.radiusRsun) && Double.isNaN(r.massMsun));
+        assertEquals(5772, r.teffK, 100); // Teff and the bolometric-flux angular diameter need no distance
+        assertTrue(r.angDiamMas > 0);
+        // distance_snr_min 0 gives every star its posterior distance
+        StarResult all = new StarDeriver(DeriveSettings.builder().distanceSnrMin(0).build()).derive(in, new StarResult());
+        assertFalse(all.has(DISTANCE_WITHHELD));
+        assertEquals(StarResult.DistanceMethod.EDSD_MEDIAN, all.distMethod);
+        assertTrue(all.lumLsun > 0);
+    }
+
+    @Test
+    void negativeParallaxStillGetsAPosteriorDistanceWhenAsked() {
         StarInput in = solarTwinAt10pc();
         in.parallaxMas = -0.5;
         in.parallaxErrMas = 0.5;
-        StarResult r = deriver.derive(in, out);
+        assertTrue(deriver.derive(in, new StarResult()).has(DISTANCE_WITHHELD), "withheld by default");
+        StarResult r = new StarDeriver(DeriveSettings.builder().distanceSnrMin(0).build()).derive(in, out);
         assertTrue(r.has(PARALLAX_NONPOSITIVE) && r.has(PARALLAX_LOW_SNR));
         assertTrue(r.distPc > 0);
         // with the inverse parallax forced there is no distance for a negative parallax

@@ -58,7 +58,7 @@ class StarDeriveUdfTest {
         Object[] faint = new Object[n + 1];
         faint[0] = 4L;
         faint[1] = 0.8;
-        faint[2] = 0.4;
+        faint[2] = 0.18; // ϖ/σ = 4.4: posterior distance (below 4 none would be given)
         set(faint, Band.BP, 17.3, 0.02);
         set(faint, Band.RP, 16.2, 0.02);
         set(faint, Band.G, 16.8, 0.01);
