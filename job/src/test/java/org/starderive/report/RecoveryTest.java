@@ -58,8 +58,11 @@ class RecoveryTest {
             assertEquals(Charts.PLOT_WIDTH, img.getWidth(), png);
             assertEquals(Charts.PLOT_HEIGHT, img.getHeight(), png);
         }
-        // flagged stars are the badly recovered ones: low-S/N distances are worse than the rest
-        double[] lowSnr = r.flags.get("PARALLAX_LOW_SNR");
-        assertTrue(lowSnr[3] > lowSnr[4], "median |distance error| flagged " + lowSnr[3] + " vs not " + lowSnr[4]);
+        // flagged stars are the badly recovered ones: disagreeing colours give worse Teff than the rest; below the
+        // distance minimum there is no distance at all (no median error), and such stars are a large share
+        double[] disagree = r.flags.get("TEFF_COLOURS_DISAGREE");
+        assertTrue(disagree[1] > disagree[2], "median |Teff error| flagged " + disagree[1] + " vs not " + disagree[2]);
+        double[] withheld = r.flags.get("DISTANCE_WITHHELD");
+        assertTrue(Double.isNaN(withheld[3]) && withheld[0] > 0.2, "withheld: share " + withheld[0] + ", |d error| " + withheld[3]);
     }
 }

@@ -49,9 +49,9 @@ public enum QualityFlag {
     /** V was computed from G and BP−RP (no V in the row). */
     V_FROM_G(16, "V computed from G and BP-RP (no V measured)"),
     /**
-     * ϖ/σ_ϖ below the configured minimum for any distance (default 4): no distance is given, nor anything that needs
-     * one. Below it the posterior under one geometric prior is set by the prior, and its intervals were measured
-     * not to cover the truth as often as they claim (docs/uncertainties.md).
+     * ϖ/σ_ϖ below the configured minimum for any distance (default 5): no distance is given, nor anything that needs
+     * one. Below it a distance rests on the prior, and the posterior intervals under one geometric prior were
+     * measured not to cover the truth as often as they claim (docs/uncertainties.md).
      */
     DISTANCE_WITHHELD(17, "parallax too insignificant for a distance (below distance_snr_min); no distance, L, R, mass or log g"),
     /** The star id occurs more than once in the input (set by the job, not by the physics core). */

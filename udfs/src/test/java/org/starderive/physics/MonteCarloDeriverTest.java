@@ -83,4 +83,32 @@ class MonteCarloDeriverTest {
         assertEquals(exact[1], MonteCarloDeriver.quantile(s, n, 0.5), 0.02 * exact[1]);
         assertEquals(exact[2], MonteCarloDeriver.quantile(s, n, StarDeriver.P84), 0.02 * exact[1]);
     }
+
+    @Test
+    void percentileIntervalOfFewDrawsHoldsSixtyEightPercentOnAverage() {
+        // Order statistics of a uniform sample: E[U_(k)] = k / (n + 1) (the Beta(k, n + 1 - k) law; any text on order
+        // statistics, e.g. David & Nagaraja 2003, Order Statistics, 3rd ed., section 2.5 — from memory). So the mean
+        // probability between the 16th and 84th percentiles of n uniform draws should be 0.68, for n = 64 as used in
+        // the job tests.
+        int n = 64;
+        int reps = 20_000;
+        double[] u = new double[n];
+        java.util.SplittableRandom r = new java.util.SplittableRandom(3);
+        double sum = 0;
+        double sum7 = 0;
+        for (int i = 0; i < reps; i++) {
+            for (int k = 0; k < n; k++) {
+                u[k] = r.nextDouble();
+            }
+            Arrays.sort(u);
+            sum += MonteCarloDeriver.quantile(u, n, StarDeriver.P84) - MonteCarloDeriver.quantile(u, n, StarDeriver.P16);
+            // the type-7 rule, (n - 1) p, for contrast: the check below can tell them apart
+            sum7 += (u[(int) ((n - 1) * StarDeriver.P84)] + ((n - 1) * StarDeriver.P84 % 1) * (u[(int) ((n - 1) * StarDeriver.P84) + 1]
+                    - u[(int) ((n - 1) * StarDeriver.P84)])) - (u[(int) ((n - 1) * StarDeriver.P16)]
+                    + ((n - 1) * StarDeriver.P16 % 1) * (u[(int) ((n - 1) * StarDeriver.P16) + 1] - u[(int) ((n - 1) * StarDeriver.P16)]));
+        }
+        double target = StarDeriver.P84 - StarDeriver.P16;
+        assertEquals(target, sum / reps, 0.003, "type 6");
+        assertTrue(target - sum7 / reps > 0.015, "type 7 shrinks the interval: " + sum7 / reps);
+    }
 }

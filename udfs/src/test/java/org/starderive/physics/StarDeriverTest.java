@@ -104,8 +104,9 @@ class StarDeriverTest {
     void lowSignificanceParallaxUsesThePosteriorAndIsFlagged() {
         StarInput in = solarTwinAt10pc();
         in.parallaxMas = 1.0;
-        in.parallaxErrMas = 0.22; // ϖ/σ = 4.5: below the inverse-parallax threshold, above the distance minimum
-        StarResult r = deriver.derive(in, out);
+        in.parallaxErrMas = 0.22; // ϖ/σ = 4.5: below the inverse-parallax threshold
+        assertTrue(deriver.derive(in, new StarResult()).has(DISTANCE_WITHHELD), "by default no distance below 5");
+        StarResult r = new StarDeriver(DeriveSettings.builder().distanceSnrMin(4).build()).derive(in, out);
         assertTrue(r.has(PARALLAX_LOW_SNR));
         assertFalse(r.has(DISTANCE_WITHHELD));
         assertEquals(StarResult.DistanceMethod.EDSD_MEDIAN, r.distMethod);
@@ -116,7 +117,7 @@ class StarDeriverTest {
     void insignificantParallaxGetsNoDistanceByDefaultButTeffAndDiameterStill() {
         StarInput in = solarTwinAt10pc();
         in.parallaxMas = 1.0;
-        in.parallaxErrMas = 0.5; // ϖ/σ = 2 < distance_snr_min 4
+        in.parallaxErrMas = 0.5; // ϖ/σ = 2 < distance_snr_min 5
         StarResult r = deriver.derive(in, out);
         assertTrue(r.has(DISTANCE_WITHHELD) && r.has(PARALLAX_LOW_SNR));
         assertEquals(StarResult.DistanceMethod.NONE, r.distMethod);

@@ -58,7 +58,7 @@ class StarDeriveUdfTest {
         Object[] faint = new Object[n + 1];
         faint[0] = 4L;
         faint[1] = 0.8;
-        faint[2] = 0.18; // ϖ/σ = 4.4: posterior distance (below 4 none would be given)
+        faint[2] = 0.4; // ϖ/σ = 2: a posterior distance because the test lowers distance_snr_min to 0
         set(faint, Band.BP, 17.3, 0.02);
         set(faint, Band.RP, 16.2, 0.02);
         set(faint, Band.G, 16.8, 0.01);
@@ -102,7 +102,8 @@ class StarDeriveUdfTest {
     @Test
     void udfOverADataFrameEqualsThePhysicsCoreRowByRow() {
         SparkSession spark = SharedSpark.spark();
-        DeriveSettings settings = DeriveSettings.defaults();
+        // every star a distance (distance_snr_min 0), so that the posterior path runs through Spark too
+        DeriveSettings settings = DeriveSettings.builder().distanceSnrMin(0).build();
         List<Row> input = new ArrayList<>();
         for (Object[] r : rows()) {
             input.add(RowFactory.create(r));
