@@ -361,25 +361,28 @@ public final class JobConfig {
     private DeriveSettings physics(JsonNode p) {
         checkKeys(p, KEY_PHYSICS, PHYSICS_KEYS);
         String path = KEY_PHYSICS;
+        // defaults read from a DeriveSettings object, not from its static constants: javac copies constants into this
+        // class, and an incremental build would keep an old default after the physics module changed it
+        DeriveSettings d = DeriveSettings.defaults();
         DeriveSettings.Builder b = DeriveSettings.builder()
-                .parallaxZeroPointMas(number(p, path, "parallax_zero_point_mas", DeriveSettings.PARALLAX_ZERO_POINT_MAS_DEFAULT))
-                .parallaxSnrMin(number(p, path, "parallax_snr_min", DeriveSettings.PARALLAX_SNR_MIN_DEFAULT))
-                .distanceSnrMin(number(p, path, "distance_snr_min", DeriveSettings.DISTANCE_SNR_MIN_DEFAULT))
-                .parallaxMaxMas(number(p, path, "parallax_max_mas", DeriveSettings.PARALLAX_MAX_MAS_DEFAULT))
-                .priorLengthKpc(number(p, path, "prior_length_kpc", DeriveSettings.PRIOR_LENGTH_KPC_DEFAULT))
-                .posteriorPercentiles(bool(p, path, "posterior_percentiles", DeriveSettings.POSTERIOR_PERCENTILES_DEFAULT))
-                .rv(number(p, path, "r_v", DeriveSettings.RV_DEFAULT))
-                .ebvDefault(number(p, path, "ebv_default", DeriveSettings.EBV_DEFAULT))
-                .ebvErrDefault(number(p, path, "ebv_err_default", DeriveSettings.EBV_ERR_DEFAULT))
-                .fehDefault(number(p, path, "feh_default", DeriveSettings.FEH_DEFAULT))
-                .fehErrDefault(number(p, path, "feh_err_default", DeriveSettings.FEH_ERR_DEFAULT))
-                .allowExtrapolation(bool(p, path, "allow_extrapolation", DeriveSettings.ALLOW_EXTRAPOLATION_DEFAULT))
-                .teffDisagreeP(number(p, path, "teff_disagree_p", DeriveSettings.TEFF_DISAGREE_P_DEFAULT))
-                .diameterDisagreeSigma(number(p, path, "diameter_disagree_sigma", DeriveSettings.DIAMETER_DISAGREE_SIGMA_DEFAULT))
-                .giantLoggPrior(number(p, path, "giant_logg_prior", DeriveSettings.GIANT_LOGG_PRIOR_DEFAULT))
-                .giantLoggPriorErr(number(p, path, "giant_logg_prior_err", DeriveSettings.GIANT_LOGG_PRIOR_ERR_DEFAULT))
-                .magMin(number(p, path, "mag_min", DeriveSettings.MAG_MIN_DEFAULT))
-                .magMax(number(p, path, "mag_max", DeriveSettings.MAG_MAX_DEFAULT));
+                .parallaxZeroPointMas(number(p, path, "parallax_zero_point_mas", d.parallaxZeroPointMas()))
+                .parallaxSnrMin(number(p, path, "parallax_snr_min", d.parallaxSnrMin()))
+                .distanceSnrMin(number(p, path, "distance_snr_min", d.distanceSnrMin()))
+                .parallaxMaxMas(number(p, path, "parallax_max_mas", d.parallaxMaxMas()))
+                .priorLengthKpc(number(p, path, "prior_length_kpc", d.priorLengthKpc()))
+                .posteriorPercentiles(bool(p, path, "posterior_percentiles", d.posteriorPercentiles()))
+                .rv(number(p, path, "r_v", d.rv()))
+                .ebvDefault(number(p, path, "ebv_default", d.ebvDefault()))
+                .ebvErrDefault(number(p, path, "ebv_err_default", d.ebvErrDefault()))
+                .fehDefault(number(p, path, "feh_default", d.fehDefault()))
+                .fehErrDefault(number(p, path, "feh_err_default", d.fehErrDefault()))
+                .allowExtrapolation(bool(p, path, "allow_extrapolation", d.allowExtrapolation()))
+                .teffDisagreeP(number(p, path, "teff_disagree_p", d.teffDisagreeP()))
+                .diameterDisagreeSigma(number(p, path, "diameter_disagree_sigma", d.diameterDisagreeSigma()))
+                .giantLoggPrior(number(p, path, "giant_logg_prior", d.giantLoggPrior()))
+                .giantLoggPriorErr(number(p, path, "giant_logg_prior_err", d.giantLoggPriorErr()))
+                .magMin(number(p, path, "mag_min", d.magMin()))
+                .magMax(number(p, path, "mag_max", d.magMax()));
         String method = text(p, path, "distance_method", "auto");
         switch (method) {
             case "auto": b.distanceMethod(DeriveSettings.DistanceMethod.AUTO); break;

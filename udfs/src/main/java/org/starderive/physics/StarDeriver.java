@@ -117,6 +117,9 @@ public final class StarDeriver {
     /** In a Monte Carlo draw only values are needed: the first-order error propagation is skipped (profiled at about a
      *  quarter of a draw's cost). Values are computed by exactly the same code either way. */
     private boolean valuesOnly;
+    /** In a Monte Carlo draw: the star's class (null: classify as usual) and its log g to start the iteration from. */
+    private LuminosityClass drawClass;
+    private double drawLogg = Double.NaN;
 
     public StarDeriver(DeriveSettings settings) {
         this.settings = settings;
@@ -152,15 +155,27 @@ public final class StarDeriver {
      * enabled relation's Teff shifted by {@code teffOffsetK[k]} (its scatter and zero point drawn by the caller).
      */
     StarResult deriveDraw(StarInput in, StarResult out, double distPc, double[] teffOffsetK) {
+        return deriveDraw(in, out, distPc, teffOffsetK, null, Double.NaN);
+    }
+
+    /**
+     * A draw that keeps the star's class {@code cls} (not reclassified per draw; null: classified as usual) and starts
+     * the log g iteration of the Gaia-band relations at {@code logg} (NaN: the solar value).
+     */
+    StarResult deriveDraw(StarInput in, StarResult out, double distPc, double[] teffOffsetK, LuminosityClass cls, double logg) {
         drawDistPc = distPc;
         drawTeffOffsetK = teffOffsetK;
         valuesOnly = true;
+        drawClass = cls;
+        drawLogg = logg;
         try {
             return derive(in, out);
         } finally {
             drawDistPc = Double.NaN;
             drawTeffOffsetK = null;
             valuesOnly = false;
+            drawClass = null;
+            drawLogg = Double.NaN;
         }
     }
 
@@ -201,7 +216,17 @@ public final class StarDeriver {
         LuminosityClass cls = LuminosityClass.MAIN_SEQUENCE;
         double logg = DerivedConstants.LOGG_SUN_CGS;
         double sLogg = DWARF_LOGG_START_ERR;
-        estimateTeff(cls, logg, sLogg);
+        boolean fixedClass = drawClass != null;
+        if (fixedClass && drawClass == LuminosityClass.EVOLVED) {
+            cls = LuminosityClass.EVOLVED;
+            estimateEvolved();
+        } else {
+            if (fixedClass && !Double.isNaN(drawLogg)) {
+                logg = drawLogg;
+                sLogg = 0.1;
+            }
+            estimateTeff(cls, logg, sLogg);
+        }
         boolean classKnown = false;
         for (int iter = 0; iter < 5; iter++) {
             chain(out, haveDist);
@@ -214,6 +239,9 @@ public final class StarDeriver {
             }
             double logL = Math.log10(out.lumLsun);
             if (logL > MassLuminosityEker2018.LOGL_MAX) {
+                if (fixedClass) {
+                    break;
+                }
                 cls = LuminosityClass.EVOLVED;
                 estimateEvolved();
                 continue;
@@ -223,7 +251,7 @@ public final class StarDeriver {
                 break; // fainter than the relation: a dwarf, but no mass
             }
             double g = DerivedConstants.LOGG_SUN_CGS + logM - 2 * Math.log10(out.radiusRsun);
-            if (g < LuminosityClass.dwarfLoggBoundary(out.teffK)) {
+            if (!fixedClass && g < LuminosityClass.dwarfLoggBoundary(out.teffK)) {
                 cls = LuminosityClass.EVOLVED;
                 estimateEvolved();
                 continue;
