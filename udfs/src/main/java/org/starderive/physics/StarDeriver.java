@@ -705,14 +705,10 @@ public final class StarDeriver {
         double slope = MassLuminosityEker2018.dLogMassDLogL(logL);
         double r = out.radiusRsun;
         // ln M = ln10 · slope · (−0.4 M_bol); ln ρ = ln M − 3 ln R; log g = (ln M − 2 ln R) / ln10, source by source
-        double varLnM = 0;
-        double varLnRho = 0;
-        double varLnG = Double.NaN;
-        if (valuesOnly) {
-            varLnM = varLnRho = Double.NaN;
-        } else {
-            varLnG = 0;
-        }
+        // (a Monte Carlo draw needs no errors: NaN, and the loop is skipped)
+        double varLnM = valuesOnly ? Double.NaN : 0;
+        double varLnRho = varLnM;
+        double varLnG = varLnM;
         for (int j = 0; j < NSRC && !valuesOnly; j++) {
             double lnM = LN10 * slope * -0.4 * cMbol[j];
             varLnM += lnM * lnM;
