@@ -43,23 +43,16 @@ public final class StarDeriveUdf implements UDF1<Row, Row> {
 
         Work(DeriveSettings s) { deriver = new StarDeriver(s); }
 
-        String relations(long mask) {
-            String t = relationText.get(mask);
-            if (t == null && !relationText.containsKey(mask)) {
-                t = org.starderive.physics.TeffRelations.describe(mask);
-                if (relationText.size() < 65_536) {
-                    relationText.put(mask, t);
-                }
-            }
-            return t;
-        }
+        String relations(long mask) { return cached(relationText, mask, org.starderive.physics.TeffRelations::describe); }
 
-        String[] flags(long mask) {
-            String[] t = flagNames.get(mask);
-            if (t == null) {
-                t = QualityFlag.nameArray(mask);
-                if (flagNames.size() < 65_536) {
-                    flagNames.put(mask, t);
+        String[] flags(long mask) { return cached(flagNames, mask, QualityFlag::nameArray); }
+
+        private static <T> T cached(java.util.HashMap<Long, T> cache, long mask, java.util.function.LongFunction<T> make) {
+            T t = cache.get(mask);
+            if (t == null && !cache.containsKey(mask)) {
+                t = make.apply(mask);
+                if (cache.size() < 65_536) {
+                    cache.put(mask, t);
                 }
             }
             return t;
