@@ -59,8 +59,10 @@ class BadInputMatrixTest {
         c.add(new Case("parallax error zero", set("parallax_err_mas", 0.0), QualityFlag.INPUT_INVALID));
         c.add(new Case("parallax error negative", set("parallax_err_mas", -0.1), QualityFlag.INPUT_INVALID));
         c.add(new Case("parallax error NaN", set("parallax_err_mas", Double.NaN), QualityFlag.INPUT_INVALID));
-        c.add(new Case("parallax zero", set("parallax_mas", 0.0), QualityFlag.PARALLAX_NONPOSITIVE, QualityFlag.PARALLAX_LOW_SNR));
-        c.add(new Case("parallax negative", set("parallax_mas", -1.5), QualityFlag.PARALLAX_NONPOSITIVE, QualityFlag.PARALLAX_LOW_SNR));
+        c.add(new Case("parallax zero", set("parallax_mas", 0.0), QualityFlag.PARALLAX_NONPOSITIVE, QualityFlag.PARALLAX_LOW_SNR,
+                QualityFlag.DISTANCE_WITHHELD));
+        c.add(new Case("parallax negative", set("parallax_mas", -1.5), QualityFlag.PARALLAX_NONPOSITIVE, QualityFlag.PARALLAX_LOW_SNR,
+                QualityFlag.DISTANCE_WITHHELD));
         c.add(new Case("parallax 1000x too large (uas read as mas)", set("parallax_mas", 25_000.0), QualityFlag.PARALLAX_IMPLAUSIBLE));
         c.add(new Case("V null", set("mag_v", null), QualityFlag.PHOTOMETRY_MISSING));
         c.add(new Case("V NaN", set("mag_v", Double.NaN), QualityFlag.INPUT_INVALID));
