@@ -147,7 +147,7 @@ public final class DerivePipeline {
 
     /**
      * One pass over the id column of a single table (Parquet reads just that column): copies per id, then in the
-     * same job the table's census (rows and id-hash sums, as {@link RowCensus#of}) and the number of repeated ids.
+     * same job the table's census (rows and id-hash sums, see {@link RowCensus}) and the number of repeated ids.
      * This replaces two passes (census, then duplicate count) — the repeated ids themselves are only gathered, by a
      * second pass, when there are any.
      */

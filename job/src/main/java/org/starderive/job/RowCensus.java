@@ -48,13 +48,6 @@ public final class RowCensus {
         return a;
     }
 
-    /** Census of one table. */
-    public static RowCensus of(Dataset<Row> d, String idColumn) {
-        List<Column> a = aggregates(col(idColumn));
-        Row r = d.agg(a.get(0), a.subList(1, a.size()).toArray(new Column[0])).first();
-        return new RowCensus(r.getLong(0), r.getLong(1), r.getLong(2));
-    }
-
     /**
      * Census the join policy must produce from two tables: max(k, j) copies of an id held k times in one and j
      * times in the other.
