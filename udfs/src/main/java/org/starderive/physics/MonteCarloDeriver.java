@@ -20,7 +20,8 @@ import org.apache.commons.rng.simple.RandomSource;
  * a calibrated range would describe a truncated, biased sample, not the star. A star without a Teff therefore only
  * has its distance sampled, without the rest of the chain; a relation's scatter is drawn only where the star has
  * both its bands. Draws keep the star's luminosity class (dwarf or evolved, as the analytic chain classed it; a star
- * near the boundary is not reclassified draw by draw) and start the log g iteration at the star's log g. (Both keep the cost down: profiled, the chain and the Gaussian draws are most of a draw's time.)
+ * near the boundary is not reclassified draw by draw) and start the log g iteration at the star's log g. (All of this
+ * keeps the cost down: profiled, the chain and the Gaussian draws are most of a draw's time.)
  *
  * <p>Reproducibility: the random stream of a star is a pure function of (run seed, star key) — a XoRoShiRo128++
  * generator of Commons RNG seeded through SplitMix64 — never of partitioning, task attempt, executor or thread.
@@ -166,7 +167,7 @@ public final class MonteCarloDeriver {
             }
             // distance
             double dist = haveDistribution ? drawDistance(posterior, p, sp, rng, g) : Double.NaN;
-            StarResult r = deriver.deriveDraw(drawIn, drawOut, haveDistribution ? dist : Double.NaN, offsets, b.lumClass, b.loggCgs);
+            StarResult r = deriver.deriveDraw(drawIn, drawOut, dist, offsets, b.lumClass, b.loggCgs);
             add(0, r.distPc);
             add(1, r.teffK);
             add(2, r.lumLsun);

@@ -152,15 +152,9 @@ public final class StarDeriver {
 
     /**
      * One Monte Carlo draw: the chain with the distance fixed to {@code distPc} (NaN: computed as usual) and each
-     * enabled relation's Teff shifted by {@code teffOffsetK[k]} (its scatter and zero point drawn by the caller).
-     */
-    StarResult deriveDraw(StarInput in, StarResult out, double distPc, double[] teffOffsetK) {
-        return deriveDraw(in, out, distPc, teffOffsetK, null, Double.NaN);
-    }
-
-    /**
-     * A draw that keeps the star's class {@code cls} (not reclassified per draw; null: classified as usual) and starts
-     * the log g iteration of the Gaia-band relations at {@code logg} (NaN: the solar value).
+     * enabled relation's Teff shifted by {@code teffOffsetK[k]} (its scatter and zero point drawn by the caller),
+     * keeping the star's class {@code cls} (not reclassified per draw; null: classified as usual) and starting the log g
+     * iteration of the Gaia-band relations at {@code logg} (NaN: the solar value). Values only, no errors.
      */
     StarResult deriveDraw(StarInput in, StarResult out, double distPc, double[] teffOffsetK, LuminosityClass cls, double logg) {
         drawDistPc = distPc;
