@@ -127,7 +127,8 @@ public final class JobConfig {
     private static final Set<String> PHYSICS_KEYS = Set.of("parallax_zero_point_mas", "parallax_snr_min",
             "parallax_max_mas", "distance_snr_min", "distance_method", "prior_length_kpc", "posterior_percentiles", "r_v", "ebv_default",
             "ebv_err_default", "feh_default", "feh_err_default", "allow_extrapolation", "teff_disagree_p",
-            "diameter_disagree_sigma", "giant_logg_prior", "giant_logg_prior_err", "mag_min", "mag_max", "relations");
+            "diameter_disagree_sigma", "giant_logg_prior", "giant_logg_prior_err", "mag_min", "mag_max", "relations",
+            "hot_teff_err_frac_max");
 
     private final String origin;
     private final String idColumn;
@@ -381,6 +382,7 @@ public final class JobConfig {
                 .diameterDisagreeSigma(number(p, path, "diameter_disagree_sigma", d.diameterDisagreeSigma()))
                 .giantLoggPrior(number(p, path, "giant_logg_prior", d.giantLoggPrior()))
                 .giantLoggPriorErr(number(p, path, "giant_logg_prior_err", d.giantLoggPriorErr()))
+                .hotTeffErrFracMax(number(p, path, "hot_teff_err_frac_max", d.hotTeffErrFracMax()))
                 .magMin(number(p, path, "mag_min", d.magMin()))
                 .magMax(number(p, path, "mag_max", d.magMax()));
         String method = text(p, path, "distance_method", "auto");
@@ -449,6 +451,7 @@ public final class JobConfig {
         s.put("diameter_disagree_sigma", d.diameterDisagreeSigma());
         s.put("giant_logg_prior", d.giantLoggPrior());
         s.put("giant_logg_prior_err", d.giantLoggPriorErr());
+        s.put("hot_teff_err_frac_max", d.hotTeffErrFracMax());
         s.put("mag_min", d.magMin());
         s.put("mag_max", d.magMax());
         s.put("parallax_unit", parallaxUnit.name().toLowerCase());

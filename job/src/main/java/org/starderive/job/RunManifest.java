@@ -44,12 +44,16 @@ public final class RunManifest {
                 ObjectNode n = rel.addObject();
                 n.put("id", r.id());
                 n.put("colour", r.colourName());
-                n.put("class", r.appliesTo().label());
+                n.put("regime", r.regime().label());
                 n.put("colour_min", r.colourMin());
                 n.put("colour_max", r.colourMax());
                 n.put("feh_min", r.fehMin());
                 n.put("feh_max", r.fehMax());
                 n.put("scatter_k", r.scatterK());
+                if (r.teffMaxK() < Double.POSITIVE_INFINITY) {
+                    n.put("teff_min_k", r.teffMinK());
+                    n.put("teff_max_k", r.teffMaxK());
+                }
                 n.put("citation", r.citation());
             }
         }
@@ -59,10 +63,17 @@ public final class RunManifest {
         methods.put("bolometric_correction", BolometricCorrectionFlower1996.CITATION);
         methods.put("g_to_v", GaiaToJohnsonRiello2021.CITATION);
         methods.put("mass_luminosity", MassLuminosityEker2018.CITATION);
+        methods.put("m_dwarf_radius", org.starderive.physics.RadiusMann2015.CITATION);
+        methods.put("m_dwarf_mass", org.starderive.physics.MassMann2019.CITATION);
+        methods.put("regime_blends", "K7-M0: " + org.starderive.physics.Regime.M_BLEND_LO_K + "-"
+                + org.starderive.physics.Regime.M_BLEND_HI_K + " K (Mann Teff); late A-early F: "
+                + org.starderive.physics.Regime.HOT_BLEND_LO_K + "-" + org.starderive.physics.Regime.HOT_BLEND_HI_K
+                + " K (Flower Teff); linear weights, our choice");
         methods.put("luminosity_class", LuminosityClass.CLASSING_CITATION);
         methods.put("surface_brightness", SurfaceBrightnessKervella2004.CITATION);
-        methods.put("uncertainties", "first order (analytic): inputs independent except shared bands, E(B-V), [Fe/H] "
-                + "and log g in the Teff mean" + (config.monteCarlo() ? "; plus Monte Carlo percentiles over "
+        methods.put("uncertainties", "first order (analytic), source by source over one table of error sources "
+                + "(bands, E(B-V), [Fe/H], log g prior, relation scatter, zero points, G to V, distance, radius and mass "
+                + "relations)" + (config.monteCarlo() ? "; plus Monte Carlo percentiles over "
                 + config.draws() + " draws per star (" + org.starderive.physics.MonteCarloDeriver.class.getSimpleName() + ")" : ""));
         ArrayNode constants = methods.putArray("constants");
         for (Constant c : new Constant[] {Iau2015.R_SUN, Iau2015.L_SUN, Iau2015.TEFF_SUN, Iau2015.GM_SUN, Iau2015.L0,

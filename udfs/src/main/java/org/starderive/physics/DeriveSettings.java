@@ -49,6 +49,11 @@ public final class DeriveSettings implements Serializable {
     /** Red-clump / giant-branch surface gravity used for the log g term of the Gaia relations for evolved stars (common practice). */
     public static final double GIANT_LOGG_PRIOR_DEFAULT = 2.5;
     public static final double GIANT_LOGG_PRIOR_ERR_DEFAULT = 0.5;
+    /**
+     * A hot-regime Teff whose 1σ error exceeds this fraction of Teff is flagged {@code HOT_TEFF_UNCERTAIN} (our choice:
+     * 10 %, where a B star's L from BC_V is already uncertain by a factor of about two).
+     */
+    public static final double HOT_TEFF_ERR_FRAC_MAX_DEFAULT = 0.10;
     /** Plausible magnitudes; anything outside is a sentinel (common practice). */
     public static final double MAG_MIN_DEFAULT = -5.0;
     public static final double MAG_MAX_DEFAULT = 35.0;
@@ -75,6 +80,7 @@ public final class DeriveSettings implements Serializable {
     private final double magMin;
     private final double magMax;
     private final long relationMask;
+    private final double hotTeffErrFracMax;
     private final double[] chi2Critical;
 
     private DeriveSettings(Builder b) {
@@ -121,6 +127,10 @@ public final class DeriveSettings implements Serializable {
             throw new IllegalArgumentException("Invalid relation selection: none enabled (at least one colour-Teff relation is needed)");
         }
         this.relationMask = b.relationMask;
+        if (!(b.hotTeffErrFracMax > 0 && b.hotTeffErrFracMax <= 1)) {
+            throw new IllegalArgumentException("Invalid hot-star Teff error fraction: " + b.hotTeffErrFracMax + " (must be in (0, 1])");
+        }
+        this.hotTeffErrFracMax = b.hotTeffErrFracMax;
         this.chi2Critical = new double[MAX_DOF + 1];
         for (int k = 1; k <= MAX_DOF; k++) {
             chi2Critical[k] = new ChiSquaredDistribution(null, k).inverseCumulativeProbability(1 - teffDisagreeP);
@@ -174,6 +184,7 @@ public final class DeriveSettings implements Serializable {
         b.magMin = magMin;
         b.magMax = magMax;
         b.relationMask = relationMask;
+        b.hotTeffErrFracMax = hotTeffErrFracMax;
         return b;
     }
 
@@ -199,6 +210,8 @@ public final class DeriveSettings implements Serializable {
     public double magMax() { return magMax; }
     /** Bit i set: relation i of {@link TeffRelations#all()} is enabled. */
     public long relationMask() { return relationMask; }
+    /** Largest Teff error, as a fraction of Teff, of a hot-regime star without {@code HOT_TEFF_UNCERTAIN}. */
+    public double hotTeffErrFracMax() { return hotTeffErrFracMax; }
 
     /** Chi-square value above which {@code dof} degrees of freedom reject agreement at the configured p. */
     public double teffDisagreeChi2(int dof) {
@@ -227,6 +240,7 @@ public final class DeriveSettings implements Serializable {
         private double magMin = MAG_MIN_DEFAULT;
         private double magMax = MAG_MAX_DEFAULT;
         private long relationMask = (1L << TeffRelations.all().size()) - 1;
+        private double hotTeffErrFracMax = HOT_TEFF_ERR_FRAC_MAX_DEFAULT;
 
         private Builder() {}
 
@@ -249,6 +263,7 @@ public final class DeriveSettings implements Serializable {
         public Builder giantLoggPriorErr(double v) { giantLoggPriorErr = v; return this; }
         public Builder magMin(double v) { magMin = v; return this; }
         public Builder magMax(double v) { magMax = v; return this; }
+        public Builder hotTeffErrFracMax(double v) { hotTeffErrFracMax = v; return this; }
 
         /** Enable only the named relations (ids of {@link TeffRelations}); unknown ids throw. */
         public Builder relations(List<String> ids) {

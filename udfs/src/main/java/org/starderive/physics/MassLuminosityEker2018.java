@@ -9,11 +9,15 @@ package org.starderive.physics;
  *   0.72–1.05   α 5.743  β −0.007
  *   1.05–2.40   α 4.329  β 0.010
  * </pre>
- * The published segments do not join: at the 0.72 M⊙ break the luminosity ranges of the two segments overlap by
- * 0.07 dex, at 2.4 and 7 M⊙ they leave gaps. The inverse {@link #massMsun} is made continuous and monotone:
- * in a gap it returns the break mass; in an overlap it blends the two segments' masses linearly in log L
- * across the overlap. Outside 0.179–31 M⊙ (in luminosity) there is no mass.
- * The relation's intrinsic scatter is not on our reference sheet and is not included in the mass error.
+ * Where the published segments do not join in luminosity (an overlap of the two segments' log L ranges, or a gap
+ * between them), the inverse {@link #massMsun} is made continuous and monotone: in a gap it returns the break mass;
+ * in an overlap it blends the two segments' masses linearly in log L across the overlap. Outside 0.179–31 M⊙ (in
+ * luminosity) there is no mass.
+ * <b>Scatter.</b> We could not confirm a published scatter for these six segments (Table 4 as we have it gives only α
+ * and β). The mass error therefore carries a scatter of our own choice, {@link #LOGL_SCATTER_DEX} = 0.05 dex in
+ * log L at fixed mass (about 3 % in mass on the 0.72–1.05 M⊙ segment), so that a mass interval is not narrower than
+ * the spread of real main-sequence stars (age, rotation, metallicity) about any single relation. Replace it when the
+ * paper's own figure is at hand.
  */
 public final class MassLuminosityEker2018 {
     private MassLuminosityEker2018() {}
@@ -39,6 +43,14 @@ public final class MassLuminosityEker2018 {
     public static final double MASS_MAX_MSUN = M_HI[N - 1];
     public static final double LOGL_MIN = LOGL_LO[0];
     public static final double LOGL_MAX = LOGL_HI[N - 1];
+
+    /** Spread of log L at fixed mass used as the relation's scatter, dex (our choice; see the class Javadoc). */
+    public static final double LOGL_SCATTER_DEX = 0.05;
+
+    /** 1σ scatter of ln M from {@link #LOGL_SCATTER_DEX} at log L: ln10 · σ(log L) · d log M / d log L. */
+    public static double lnMassScatter(double logL) {
+        return Math.log(10) * LOGL_SCATTER_DEX * dLogMassDLogL(logL);
+    }
 
     /** Forward relation: log10 L/L⊙ for a main-sequence mass in M⊙; NaN outside 0.179–31. */
     public static double logLuminosity(double massMsun) {

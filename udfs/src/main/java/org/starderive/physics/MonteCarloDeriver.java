@@ -9,9 +9,11 @@ import org.apache.commons.rng.simple.RandomSource;
  * Monte Carlo propagation of every input uncertainty through the whole chain, giving the 16th, 50th and 84th
  * percentiles of distance, Teff, L, R, mass, log g and angular diameter.
  *
- * <p>Each draw: magnitudes ~ N(m, σ_m); E(B−V) ~ N(E, σ_E) clipped at 0; [Fe/H] ~ N([Fe/H], σ); each colour
- * relation's Teff shifted by its own scatter ~ N(0, σ_rel) and, common to all relations of a family, by the
- * temperature scale's zero point; the distance sampled from the star's distance distribution — for an
+ * <p>Each draw perturbs every source of the one error table ({@link ErrorSource}) by z × σ with z ~ N(0, 1), the σ
+ * being exactly those of the first-order path: magnitudes, E(B−V) (clipped at 0), [Fe/H] (an assumed one by its
+ * assumed spread), the evolved stars' log g prior, the G→V conversion, the M-dwarf radius relation and the mass
+ * relations; each colour relation's Teff is shifted by its own scatter ~ N(0, σ_rel) and, with one z shared by all,
+ * by its temperature scale's zero point; the distance is sampled from the star's distance distribution — for an
  * inverse-parallax star 1/ϖ' with ϖ' ~ N(ϖ, σ_ϖ) (redrawn if ϖ' ≤ 0), otherwise from the posterior under the
  * exponentially decreasing space density prior (Bailer-Jones 2015) by inverse-transform sampling. Every draw goes
  * through {@link StarDeriver}; percentiles are taken over the draws that gave a value (none if fewer than half did).
@@ -41,8 +43,7 @@ public final class MonteCarloDeriver {
     private final int[] counts;
     private final int[] usedRelations;
     private final double[] baseValues = new double[NQ];
-    private final boolean[] c21;
-    private final StarInput drawIn = new StarInput();
+    private final double[] z = new double[ErrorSource.COUNT];
     private final StarResult drawOut = new StarResult();
     private final StarResult base = new StarResult();
     private final double[] probs = {StarDeriver.P16, 0.5, StarDeriver.P84};
@@ -60,10 +61,6 @@ public final class MonteCarloDeriver {
         this.samples = new double[NQ][draws];
         this.counts = new int[NQ];
         this.usedRelations = new int[relations.length];
-        this.c21 = new boolean[relations.length];
-        for (int k = 0; k < relations.length; k++) {
-            c21[k] = relations[k].citation().equals(TeffRelations.C21);
-        }
     }
 
     public int draws() { return draws; }
@@ -74,29 +71,6 @@ public final class MonteCarloDeriver {
         z = (z ^ (z >>> 30)) * 0xBF58476D1CE4E5B9L;
         z = (z ^ (z >>> 27)) * 0x94D049BB133111EBL;
         return z ^ (z >>> 31);
-    }
-
-    private static void copy(StarInput from, StarInput to) {
-        to.hasParallax = from.hasParallax;
-        to.parallaxMas = from.parallaxMas;
-        to.hasParallaxErr = from.hasParallaxErr;
-        to.parallaxErrMas = from.parallaxErrMas;
-        System.arraycopy(from.hasMag, 0, to.hasMag, 0, Band.COUNT);
-        System.arraycopy(from.mag, 0, to.mag, 0, Band.COUNT);
-        System.arraycopy(from.hasMagErr, 0, to.hasMagErr, 0, Band.COUNT);
-        System.arraycopy(from.magErr, 0, to.magErr, 0, Band.COUNT);
-        to.hasEbv = from.hasEbv;
-        to.ebv = from.ebv;
-        to.hasEbvErr = from.hasEbvErr;
-        to.ebvErr = from.ebvErr;
-        to.hasFeh = from.hasFeh;
-        to.feh = from.feh;
-        to.hasFehErr = from.hasFehErr;
-        to.fehErr = from.fehErr;
-    }
-
-    private static boolean usable(double v, double e) {
-        return Double.isFinite(v) && e > 0 && Double.isFinite(e);
     }
 
     /**
@@ -116,7 +90,6 @@ public final class MonteCarloDeriver {
             haveDistribution = deriver.posterior().percentilesKpc(p, sp, deriver.settings().priorLengthKpc(), probs, q);
         }
         Arrays.fill(counts, 0);
-        copy(in, drawIn);
         boolean chain = !Double.isNaN(b.teffK);
         if (!chain) {
             // no Teff from the measured colours: only the distance has a distribution to sample
@@ -137,37 +110,29 @@ public final class MonteCarloDeriver {
                 usedRelations[nRel++] = k;
             }
         }
+        boolean evolved = b.lumClass == LuminosityClass.EVOLVED;
+        boolean vFromG = QualityFlag.V_FROM_G.isSet(b.flags);
         for (int d = 0; d < draws; d++) {
-            // inputs
+            // one standard normal per error source (ErrorSource); the chain applies z × σ
             for (int k = 0; k < Band.COUNT; k++) {
-                if (in.hasMag[k] && in.hasMagErr[k] && usable(in.mag[k], in.magErr[k])) {
-                    drawIn.mag[k] = in.mag[k] + in.magErr[k] * g.sample();
-                }
+                z[k] = in.hasMag[k] ? g.sample() : 0;
             }
-            if (in.hasEbv && in.hasEbvErr && usable(in.ebv, in.ebvErr)) {
-                drawIn.ebv = Math.max(0, in.ebv + in.ebvErr * g.sample());
-            }
-            if (in.hasFeh && in.hasFehErr && usable(in.feh, in.fehErr)) {
-                drawIn.feh = in.feh + in.fehErr * g.sample();
-            } else if (!in.hasFeh || !Double.isFinite(in.feh)) {
-                // the assumed metallicity carries its assumed spread
-                drawIn.hasFeh = true;
-                drawIn.feh = deriver.settings().fehDefault() + deriver.settings().fehErrDefault() * g.sample();
-                drawIn.hasFehErr = true;
-                drawIn.fehErr = 0;
-            }
-            // relation scatter and the families' zero points (one common draw per family)
-            double zC10 = g.sample();
-            double zC21 = g.sample();
+            z[ErrorSource.EBV] = g.sample();
+            z[ErrorSource.FEH] = g.sample();
+            z[ErrorSource.LOGG] = evolved ? g.sample() : 0;
+            z[ErrorSource.ZP] = g.sample();
+            z[ErrorSource.GV] = vFromG ? g.sample() : 0;
+            z[ErrorSource.RADIUS_REL] = g.sample();
+            z[ErrorSource.MASS_REL] = g.sample();
+            // each relation's own scatter (independent) and the temperature scales' zero points (one shared z)
             for (int i = 0; i < nRel; i++) {
                 int k = usedRelations[i];
                 TeffRelation r = relations[k];
-                double z = c21[k] ? zC21 : zC10;
-                offsets[k] = r.scatterK() * g.sample() + r.zeroPointK() * z;
+                offsets[k] = r.scatterK(b.teffK) * g.sample() + r.zeroPointK() * z[ErrorSource.ZP];
             }
             // distance
             double dist = haveDistribution ? drawDistance(posterior, p, sp, rng, g) : Double.NaN;
-            StarResult r = deriver.deriveDraw(drawIn, drawOut, dist, offsets, b.lumClass, b.loggCgs);
+            StarResult r = deriver.deriveDraw(in, drawOut, dist, offsets, z, b.lumClass, b.loggCgs);
             add(0, r.distPc);
             add(1, r.teffK);
             add(2, r.lumLsun);

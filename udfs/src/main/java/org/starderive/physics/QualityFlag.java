@@ -8,10 +8,13 @@ import java.util.List;
  * assumption. The bit values are part of the output format: never renumber, only append.
  */
 public enum QualityFlag {
-    /** ϖ/σ_ϖ below the configured threshold (default 5): distance from the prior-based posterior, wide. */
-    PARALLAX_LOW_SNR(0, "parallax signal-to-noise below the threshold; inverse parallax not used"),
+    /**
+     * ϖ/σ_ϖ below the configured threshold (default 5): inverse parallax not used; by default no distance at all
+     * ({@link #DISTANCE_WITHHELD}), the prior-based posterior only where {@code distance_snr_min} allows it.
+     */
+    PARALLAX_LOW_SNR(0, "parallax signal-to-noise below the threshold; inverse parallax not used (no distance unless distance_snr_min allows the posterior)"),
     /** Parallax (after zero-point correction) is zero or negative. */
-    PARALLAX_NONPOSITIVE(1, "parallax is zero or negative; distance comes from the prior-based posterior only"),
+    PARALLAX_NONPOSITIVE(1, "parallax is zero or negative; no distance unless distance_snr_min <= 0 allows the posterior"),
     /** No parallax in the row. */
     PARALLAX_MISSING(2, "no parallax; no distance and no absolute quantities"),
     /** |ϖ| larger than any star's (wrong unit?). */
@@ -23,10 +26,10 @@ public enum QualityFlag {
     /** A value is NaN/infinite, or an error is not positive, or a value is out of its physical domain. */
     INPUT_INVALID(6, "an input value or error is NaN, infinite, non-positive where it must be positive, or unphysical; it was ignored"),
     /**
-     * At least one available colour lies outside its relation's calibrated range (that relation is not used). With no
-     * colour in range there is no Teff (unless extrapolation is allowed).
+     * The star has colours, but none inside the calibrated range of any relation of its regime: no Teff (unless
+     * extrapolation is allowed). Colours outside one relation but inside another regime's are not flagged.
      */
-    COLOUR_OUT_OF_RANGE(7, "a colour lies outside its relation's calibrated range and was not used; with none in range, no Teff"),
+    COLOUR_OUT_OF_RANGE(7, "no colour lies inside the calibrated range of a relation of the star's regime: no Teff"),
     /** Teff extrapolated outside a relation's calibrated range (only when extrapolation is switched on). */
     TEFF_EXTRAPOLATED(8, "Teff extrapolated beyond a relation's calibrated range"),
     /**
@@ -34,14 +37,14 @@ public enum QualityFlag {
      * says the star is hotter/cooler than the in-range estimates allow.
      */
     TEFF_COLOURS_DISAGREE(9, "Teff from different colours disagree beyond their errors, or an out-of-range colour contradicts it"),
-    /** Bolometric correction outside its calibration or known to be poor (dwarfs cooler than 4000 K). */
-    BC_UNRELIABLE(10, "bolometric correction outside its calibration or poor (dwarfs below 4000 K)"),
+    /** L rests on a bolometric correction outside its calibration or known to be poor (dwarfs cooler than 4000 K). */
+    BC_UNRELIABLE(10, "L rests on a bolometric correction outside its calibration or poor (dwarfs below 4000 K without an M-dwarf radius)"),
     /** No E(B−V) for this row: the configured default (0 unless set) was used. */
     EXTINCTION_ASSUMED(11, "no per-star extinction; the configured default was used"),
     /** No [Fe/H] for this row: the configured default was used. */
     METALLICITY_ASSUMED(12, "no per-star [Fe/H]; the configured default was used"),
     /** No mass: the star is not classed main sequence, or lies outside the mass-luminosity relation. */
-    MASS_NOT_APPLICABLE(13, "no mass: not a main-sequence star or outside the mass-luminosity relation; no density, no log g"),
+    MASS_NOT_APPLICABLE(13, "no mass: not a main-sequence star or outside the mass relations; no density, no log g"),
     /** Luminosity class could not be determined (no distance): main-sequence relations assumed. */
     LUM_CLASS_ASSUMED(14, "luminosity class unknown (no usable distance): main-sequence colour relations assumed"),
     /** Stefan–Boltzmann and surface-brightness angular diameters disagree beyond their errors. */
@@ -54,6 +57,11 @@ public enum QualityFlag {
      * measured not to cover the truth as often as they claim (docs/uncertainties.md).
      */
     DISTANCE_WITHHELD(17, "parallax too insignificant for a distance (below distance_snr_min); no distance, L, R, mass or log g"),
+    /**
+     * A hot-regime star (Flower 1996 Teff from B−V) whose Teff error exceeds {@code hot_teff_err_frac_max} of its Teff:
+     * for B stars the colour is so flat in Teff that dereddening dominates.
+     */
+    HOT_TEFF_UNCERTAIN(18, "hot star whose Teff error exceeds hot_teff_err_frac_max of Teff (dereddening dominates)"),
     /** The star id occurs more than once in the input (set by the job, not by the physics core). */
     DUPLICATE_ID(20, "the star id occurs more than once in the input; every copy is kept");
 

@@ -1,5 +1,6 @@
 package org.starderive.physics;
 
+import java.util.Arrays;
 import java.util.List;
 
 import static org.starderive.physics.Band.BP;
@@ -22,65 +23,58 @@ import static org.starderive.physics.QualityFlag.*;
  *       ({@link CardelliClaytonMathis1989}); colour-dependent coefficients for G/BP/RP ({@link GaiaBandExtinction});</li>
  *   <li>distance from the zero-point-corrected parallax ({@link ParallaxDistance}, {@link EdsdPosterior});</li>
  *   <li>distance modulus μ = 5 log10(d / 10 pc), absolute magnitudes M = m − μ − A;</li>
- *   <li>Teff: every enabled, in-range colour relation of the star's class ({@link TeffRelations}), combined by an
- *       inverse-variance mean; a chi-square test flags disagreement;</li>
- *   <li>BC_V (Flower 1996 / Torres 2010) on its own solar scale; V from G when V is missing (Riello et al. 2021);</li>
- *   <li>L/L⊙ = 10^(−0.4 (M_bol − M_bol,⊙)); L in W with the nominal L⊙ (IAU 2015 B3); M_bol reported on the
- *       IAU 2015 B2 scale;</li>
- *   <li>Stefan–Boltzmann law: R/R⊙ = (L/L⊙)^½ (Teff⊙/Teff)² with the nominal Teff⊙ (IAU 2015 B3), which makes
- *       σ drop out of the ratio; angular diameter θ = 2R/d, computed from the bolometric flux alone so that it
- *       needs no distance;</li>
- *   <li>class ({@link LuminosityClass}); for main-sequence stars the mass from {@link MassLuminosityEker2018},
- *       mean density ρ = M / (4/3 π R³) and log g = log10(G M / R²) in cgs;</li>
+ *   <li>Teff by calibration {@link Regime}: each regime's in-range colour relations ({@link TeffRelations}) give an
+ *       inverse-variance mean ({@link TeffEstimator}); M-dwarf, FGK and hot estimates are blended across the
+ *       K7–M0 and late-A–early-F zones; a chi-square test flags disagreement;</li>
+ *   <li>L and R: BC_V (Flower 1996 / Torres 2010) on its own solar scale, L/L⊙ = 10^(−0.4 (M_bol − M_bol,⊙)) and
+ *       the Stefan–Boltzmann law R/R⊙ = (L/L⊙)^½ (Teff⊙/Teff)² with the nominal Teff⊙ (IAU 2015 B3); for M dwarfs R
+ *       from M_Ks ({@link RadiusMann2015}) and L = R² (Teff/Teff⊙)⁴; V from G when V is missing (Riello et al. 2021);
+ *       M_bol reported on the IAU 2015 B2 scale; angular diameter θ = 2R/d, or from the bolometric flux alone;</li>
+ *   <li>class ({@link LuminosityClass}): a red star by its M_Ks, others by the log g boundary; for main-sequence stars
+ *       the mass from {@link MassLuminosityEker2018} or, for M dwarfs, {@link MassMann2019}, mean density
+ *       ρ = M / (4/3 π R³) and log g = log10(G M / R²) in cgs;</li>
  *   <li>for main-sequence stars, the surface-brightness diameter ({@link SurfaceBrightnessKervella2004}) as a
  *       cross-check of the Stefan–Boltzmann one.</li>
  * </ol>
- * First-order errors are propagated source by source: every independent source of error (each band's magnitude,
- * E(B−V), [Fe/H], log g, the relations' scatter, the temperature scale's zero point, the G→V conversion, the
- * distance) carries its derivative through Teff, M_bol, L, R, θ, mass, density and log g, so that shared inputs
- * (V in both the colours and the magnitude) are correlated correctly. They remain linear approximations where errors
- * are large; the Monte Carlo option ({@link MonteCarloDeriver}) is not.
+ * First-order errors are propagated source by source over the table of {@link ErrorSource}: every independent source
+ * carries its derivative through Teff, M_bol, L, R, θ, mass, density and log g, so that shared inputs are correlated
+ * correctly. The Monte Carlo path ({@link MonteCarloDeriver}) runs this same chain with every source perturbed by
+ * z × σ ({@link #deriveDraw}).
  */
 public final class StarDeriver {
     /** Cumulative probabilities of the 16th, 50th and 84th percentiles (±1σ of a Gaussian). */
     static final double P16 = 0.15865525393145707;
     static final double P84 = 0.8413447460685429;
     private static final double LN10 = Math.log(10);
-    private static final double TEFF_SANE_MIN_K = 2000.0;
-    private static final double TEFF_SANE_MAX_K = 50000.0;
     private static final double MAG_ERR_MAX = 10.0;
     private static final double PARALLAX_ERR_MAX_MAS = 1e5;
     /** Below a nano-arcsecond an error is not a measurement (its square underflows the posterior). */
     private static final double PARALLAX_ERR_MIN_MAS = 1e-6;
     private static final double EBV_MAX = 20.0;
     private static final double DWARF_LOGG_START_ERR = 0.3;
+    private static final int CLASS_ITERATIONS_MAX = 8;
     /** θ in mas of a 1 R⊙ star at 10 pc: 2 R⊙ / 10 pc. */
     private static final double THETA_SUN_AT_10PC_MAS = 2 * Iau2015.R_SUN_M / (10 * DerivedConstants.PARSEC_M) / DerivedConstants.MAS_RAD;
+    private static final int NSRC = ErrorSource.COUNT;
 
     private final DeriveSettings settings;
     private final TeffRelation[] relations;
-    private final int[] relationIndex;
     private final double[] ccmOverAv = new double[Band.COUNT];
     private final EdsdPosterior posterior = EdsdPosterior.standard();
     private final double[] probs = {P16, 0.5, P84};
     private final double[] quantiles = new double[3];
 
-    // per-star work
-    private final double[] mObs = new double[Band.COUNT];
-    private final double[] m0 = new double[Band.COUNT];
-    private final double[] sm = new double[Band.COUNT];
-    private final double[] rBand = new double[Band.COUNT];
-    private final double[] tEst;
-    private final double[] wEst;
-    private double ebv;
-    private double sEbv;
-    private double feh;
-    private double sFeh;
+    // per-star state
+    private final StarState s = new StarState();
+    private final TeffEstimator estMain;
+    private final TeffEstimator estAlt;
+    private final TeffEstimator estM;
+    private final TeffEstimator estHot;
     private double v0;
     private boolean vObserved;
     private double mu;
     private double sMu;
-    // Teff estimate state
+    // the blended Teff estimate
     private double tMean;
     private double tErr;
     private long tMask;
@@ -89,35 +83,27 @@ public final class StarDeriver {
     private boolean tAnyColour;
     private boolean tExtrapolated;
     private boolean tUsesLogg;
-    private boolean tAnyOutOfRange;
     private boolean tBoundBroken;
-    private final double[] gradBand = new double[Band.COUNT];
-    // chain state: first-order error contributions of each independent source (value = derivative × σ of the source)
-    private static final int SRC_EBV = Band.COUNT;
-    private static final int SRC_FEH = Band.COUNT + 1;
-    private static final int SRC_LOGG = Band.COUNT + 2;
-    private static final int SRC_SCATTER = Band.COUNT + 3;
-    private static final int SRC_ZP = Band.COUNT + 4;
-    private static final int SRC_GV = Band.COUNT + 5;
-    private static final int SRC_MU = Band.COUNT + 6;
-    private static final int NSRC = Band.COUNT + 7;
-    /** Contributions to Teff. */
+    private double wM;
+    private double wHot;
+    private Regime tRegime;
+    /** First-order contributions of each error source to Teff, V₀, absolute M_bol, ln R, ln θ and M_Ks. */
     private final double[] cT = new double[NSRC];
-    /** Contributions to V₀. */
     private final double[] cV = new double[NSRC];
-    /** Contributions to the absolute bolometric magnitude. */
     private final double[] cMbol = new double[NSRC];
-    /** Contributions to ln R. */
     private final double[] cLnR = new double[NSRC];
+    private final double[] cKs = new double[NSRC];
+    private final double[] cMbolM = new double[NSRC];
+    private final double[] cLnRM = new double[NSRC];
     private final double[] work = new double[NSRC];
-    private double sMbol;
+    private final double[] workM = new double[NSRC];
+    /** Whether the M-dwarf radius route gave L and R in the last chain (then its weight is {@link #wM}). */
+    private double wRadiusM;
     // Monte Carlo draw overrides (NaN / null: off)
     private double drawDistPc = Double.NaN;
     private double[] drawTeffOffsetK;
-    /** In a Monte Carlo draw only values are needed: the first-order error propagation is skipped (profiled at about a
-     *  quarter of a draw's cost). Values are computed by exactly the same code either way. */
-    private boolean valuesOnly;
-    /** In a Monte Carlo draw: the star's class (null: classify as usual) and its log g to start the iteration from. */
+    /** Standard normal deviates per {@link ErrorSource} in a Monte Carlo draw (null: none). */
+    private double[] drawZ;
     private LuminosityClass drawClass;
     private double drawLogg = Double.NaN;
 
@@ -126,7 +112,7 @@ public final class StarDeriver {
         List<TeffRelation> all = TeffRelations.all();
         int n = Long.bitCount(settings.relationMask());
         this.relations = new TeffRelation[n];
-        this.relationIndex = new int[n];
+        int[] relationIndex = new int[n];
         int k = 0;
         for (int i = 0; i < all.size(); i++) {
             if ((settings.relationMask() & (1L << i)) != 0) {
@@ -135,8 +121,11 @@ public final class StarDeriver {
                 k++;
             }
         }
-        this.tEst = new double[n];
-        this.wEst = new double[n];
+        boolean extrapolate = settings.allowExtrapolation();
+        this.estMain = new TeffEstimator(s, relations, relationIndex, extrapolate);
+        this.estAlt = new TeffEstimator(s, relations, relationIndex, extrapolate);
+        this.estM = new TeffEstimator(s, relations, relationIndex, extrapolate);
+        this.estHot = new TeffEstimator(s, relations, relationIndex, extrapolate);
         for (Band b : Band.values()) {
             ccmOverAv[b.ordinal()] = CardelliClaytonMathis1989.bandOverAv(b, settings.rv());
         }
@@ -151,15 +140,18 @@ public final class StarDeriver {
     EdsdPosterior posterior() { return posterior; }
 
     /**
-     * One Monte Carlo draw: the chain with the distance fixed to {@code distPc} (NaN: computed as usual) and each
-     * enabled relation's Teff shifted by {@code teffOffsetK[k]} (its scatter and zero point drawn by the caller),
-     * keeping the star's class {@code cls} (not reclassified per draw; null: classified as usual) and starting the log g
-     * iteration of the Gaia-band relations at {@code logg} (NaN: the solar value). Values only, no errors.
+     * One Monte Carlo draw: the chain with the distance fixed to {@code distPc} (NaN: computed as usual), each
+     * enabled relation's Teff shifted by {@code teffOffsetK[k]} (its scatter and zero point drawn by the caller), every
+     * other error source j perturbed by {@code z[j]} times its σ ({@link ErrorSource}), keeping the star's class
+     * {@code cls} (null: classified as usual) and starting the log g iteration of the Gaia-band relations at
+     * {@code logg} (NaN: the solar value). Values only, no errors.
      */
-    StarResult deriveDraw(StarInput in, StarResult out, double distPc, double[] teffOffsetK, LuminosityClass cls, double logg) {
+    StarResult deriveDraw(StarInput in, StarResult out, double distPc, double[] teffOffsetK, double[] z,
+                          LuminosityClass cls, double logg) {
         drawDistPc = distPc;
         drawTeffOffsetK = teffOffsetK;
-        valuesOnly = true;
+        drawZ = z;
+        s.valuesOnly = true;
         drawClass = cls;
         drawLogg = logg;
         try {
@@ -167,10 +159,16 @@ public final class StarDeriver {
         } finally {
             drawDistPc = Double.NaN;
             drawTeffOffsetK = null;
-            valuesOnly = false;
+            drawZ = null;
+            s.valuesOnly = false;
             drawClass = null;
             drawLogg = Double.NaN;
         }
+    }
+
+    /** z × σ of source {@code j} in a draw; 0 outside draws. */
+    private double dz(int j, double sigma) {
+        return drawZ == null ? 0.0 : drawZ[j] * sigma;
     }
 
     /** Derives everything for {@code in} into {@code out} (cleared first) and returns {@code out}. */
@@ -196,17 +194,18 @@ public final class StarDeriver {
             out.distModulusMag = mu;
             out.distModulusErrMag = sMu;
             for (int b = 0; b < Band.COUNT; b++) {
-                if (!Double.isNaN(m0[b])) {
-                    out.absMag[b] = m0[b] - mu;
-                    out.absMagErr[b] = Math.sqrt(sm[b] * sm[b] + sMu * sMu + sq(rBand[b] * sEbv));
+                if (!Double.isNaN(s.m0[b])) {
+                    out.absMag[b] = s.m0[b] - mu;
+                    out.absMagErr[b] = Math.sqrt(s.sm[b] * s.sm[b] + sMu * sMu + sq(s.rBand[b] * s.sEbv));
                 }
             }
         } else {
             mu = sMu = Double.NaN;
         }
         flags |= visualMagnitude();
+        absoluteKs(out);
 
-        // Teff, luminosity and class, iterated: the class picks the relations; the Gaia relations need log g.
+        // Teff, luminosity and class, iterated: the class picks the relations; the Gaia relations need log g
         LuminosityClass cls = LuminosityClass.MAIN_SEQUENCE;
         double logg = DerivedConstants.LOGG_SUN_CGS;
         double sLogg = DWARF_LOGG_START_ERR;
@@ -219,16 +218,29 @@ public final class StarDeriver {
                 logg = drawLogg;
                 sLogg = 0.1;
             }
-            estimateTeff(cls, logg, sLogg);
+            estimate(LuminosityClass.MAIN_SEQUENCE, logg, sLogg);
         }
         boolean classKnown = false;
-        for (int iter = 0; iter < 5; iter++) {
+        boolean stale = true; // the chain does not yet describe the current estimate
+        for (int iter = 0; iter < CLASS_ITERATIONS_MAX; iter++) {
             chain(out, haveDist);
+            stale = false;
             if (!haveDist || !(out.lumLsun > 0)) {
                 break;
             }
             classKnown = true;
             if (cls == LuminosityClass.EVOLVED) {
+                break;
+            }
+            double mKs = out.absMag[KS.ordinal()];
+            if (wM >= 0.5 && !Double.isNaN(mKs)) {
+                // a red star: an M dwarf, or a giant if brighter than any M dwarf in Ks
+                if (!fixedClass && mKs < Regime.M_DWARF_MKS_MIN) {
+                    cls = LuminosityClass.EVOLVED;
+                    estimateEvolved();
+                    stale = true;
+                    continue;
+                }
                 break;
             }
             double logL = Math.log10(out.lumLsun);
@@ -238,41 +250,42 @@ public final class StarDeriver {
                 }
                 cls = LuminosityClass.EVOLVED;
                 estimateEvolved();
+                stale = true;
                 continue;
             }
             double logM = MassLuminosityEker2018.logMass(logL);
             if (Double.isNaN(logM)) {
-                break; // fainter than the relation: a dwarf, but no mass
+                break; // fainter than the relation: a dwarf, but no mass from it
             }
             double g = DerivedConstants.LOGG_SUN_CGS + logM - 2 * Math.log10(out.radiusRsun);
             if (!fixedClass && g < LuminosityClass.dwarfLoggBoundary(out.teffK)) {
                 cls = LuminosityClass.EVOLVED;
                 estimateEvolved();
+                stale = true;
                 continue;
             }
             if (tUsesLogg && Math.abs(g - logg) > 0.005) {
                 logg = g;
                 sLogg = 0.1;
-                estimateTeff(cls, logg, sLogg);
+                estimate(LuminosityClass.MAIN_SEQUENCE, logg, sLogg);
+                stale = true;
                 continue;
             }
             break;
         }
+        if (stale) {
+            // the iteration cap was reached right after a re-estimate: every field must describe the final estimate
+            chain(out, haveDist);
+        }
         out.lumClass = classKnown ? cls : null;
+        out.regime = Double.isNaN(out.teffK) ? null : tRegime;
 
         // flags that describe the final Teff
         if (Double.isNaN(out.teffK)) {
-            if (tAnyColour) {
-                flags |= COLOUR_OUT_OF_RANGE.mask();
-            } else {
-                flags |= PHOTOMETRY_MISSING.mask();
-            }
+            flags |= tAnyColour ? COLOUR_OUT_OF_RANGE.mask() : PHOTOMETRY_MISSING.mask();
         } else {
             if (tExtrapolated) {
                 flags |= TEFF_EXTRAPOLATED.mask();
-            }
-            if (tAnyOutOfRange) {
-                flags |= COLOUR_OUT_OF_RANGE.mask();
             }
             if ((tCount >= 2 && tChi2 > settings.teffDisagreeChi2(tCount - 1)) || tBoundBroken) {
                 flags |= TEFF_COLOURS_DISAGREE.mask();
@@ -280,13 +293,17 @@ public final class StarDeriver {
             if (!classKnown) {
                 flags |= LUM_CLASS_ASSUMED.mask();
             }
-            if (Double.isNaN(v0)) {
+            if (Double.isNaN(out.lumLsun) && haveDist) {
                 flags |= PHOTOMETRY_MISSING.mask();
             }
+            boolean bcUsed = wRadiusM < 1 && !Double.isNaN(out.bcV);
             boolean coolDwarf = cls == LuminosityClass.MAIN_SEQUENCE
                     && out.teffK < BolometricCorrectionFlower1996.COOL_DWARF_LIMIT_K;
-            if (!BolometricCorrectionFlower1996.inRange(out.teffK) || coolDwarf) {
+            if (bcUsed && (!BolometricCorrectionFlower1996.inRange(out.teffK) || coolDwarf)) {
                 flags |= BC_UNRELIABLE.mask();
+            }
+            if (tRegime == Regime.HOT && out.teffErrK > settings.hotTeffErrFracMax() * out.teffK) {
+                flags |= HOT_TEFF_UNCERTAIN.mask();
             }
         }
 
@@ -295,7 +312,7 @@ public final class StarDeriver {
             crossCheckDiameter(out);
             if (out.angDiamSbrMas > 0 && out.angDiamMas > 0) {
                 double rel = Math.hypot(out.angDiamErrMas / out.angDiamMas,
-                        SurfaceBrightnessKervella2004.relativeError(sm[V.ordinal()], sm[KS.ordinal()]));
+                        SurfaceBrightnessKervella2004.relativeError(s.sm[V.ordinal()], s.sm[KS.ordinal()]));
                 if (Math.abs(Math.log(out.angDiamMas / out.angDiamSbrMas)) > settings.diameterDisagreeSigma() * rel) {
                     flags |= DIAMETER_DISAGREE.mask();
                 }
@@ -324,8 +341,8 @@ public final class StarDeriver {
     private long readPhotometry(StarInput in) {
         long flags = 0;
         for (int b = 0; b < Band.COUNT; b++) {
-            mObs[b] = Double.NaN;
-            sm[b] = Double.NaN;
+            s.mObs[b] = Double.NaN;
+            s.sm[b] = Double.NaN;
             if (!in.hasMag[b]) {
                 continue;
             }
@@ -343,8 +360,8 @@ public final class StarDeriver {
                 flags |= INPUT_INVALID.mask();
                 continue;
             }
-            mObs[b] = v;
-            sm[b] = e;
+            s.mObs[b] = v + dz(b, e);
+            s.sm[b] = e;
         }
         return flags;
     }
@@ -353,13 +370,13 @@ public final class StarDeriver {
         long flags = 0;
         boolean valid = in.hasEbv && in.ebv >= 0 && in.ebv <= EBV_MAX;
         if (valid) {
-            ebv = in.ebv;
+            s.ebv = in.ebv;
             if (!in.hasEbvErr) {
-                sEbv = settings.ebvErrDefault();
+                s.sEbv = settings.ebvErrDefault();
             } else if (in.ebvErr >= 0 && in.ebvErr <= EBV_MAX) {
-                sEbv = in.ebvErr;
+                s.sEbv = in.ebvErr;
             } else {
-                sEbv = settings.ebvErrDefault();
+                s.sEbv = settings.ebvErrDefault();
                 flags |= INPUT_INVALID.mask();
             }
         } else {
@@ -367,25 +384,27 @@ public final class StarDeriver {
                 flags |= INPUT_INVALID.mask();
             }
             flags |= EXTINCTION_ASSUMED.mask();
-            ebv = settings.ebvDefault();
-            sEbv = settings.ebvErrDefault();
+            s.ebv = settings.ebvDefault();
+            s.sEbv = settings.ebvErrDefault();
         }
-        out.ebvUsed = ebv;
-        out.avMag = settings.rv() * ebv;
+        s.ebv = Math.max(0, s.ebv + dz(ErrorSource.EBV, s.sEbv));
+        out.ebvUsed = s.ebv;
+        out.avMag = settings.rv() * s.ebv;
         return flags;
     }
 
     private long readMetallicity(StarInput in) {
         long flags = 0;
         boolean valid = in.hasFeh && in.feh >= -5 && in.feh <= 1;
+        s.fehMeasured = valid;
         if (valid) {
-            feh = in.feh;
+            s.feh = in.feh;
             if (!in.hasFehErr) {
-                sFeh = settings.fehErrDefault();
+                s.sFeh = settings.fehErrDefault();
             } else if (in.fehErr >= 0 && in.fehErr <= 5) {
-                sFeh = in.fehErr;
+                s.sFeh = in.fehErr;
             } else {
-                sFeh = settings.fehErrDefault();
+                s.sFeh = settings.fehErrDefault();
                 flags |= INPUT_INVALID.mask();
             }
         } else {
@@ -393,26 +412,27 @@ public final class StarDeriver {
                 flags |= INPUT_INVALID.mask();
             }
             flags |= METALLICITY_ASSUMED.mask();
-            feh = settings.fehDefault();
-            sFeh = settings.fehErrDefault();
+            s.feh = settings.fehDefault();
+            s.sFeh = settings.fehErrDefault();
         }
+        s.feh += dz(ErrorSource.FEH, s.sFeh);
         return flags;
     }
 
     private void deredden() {
         double rv = settings.rv();
         for (int b = 0; b < Band.COUNT; b++) {
-            rBand[b] = rv * ccmOverAv[b];
+            s.rBand[b] = rv * ccmOverAv[b];
         }
-        double bp = mObs[BP.ordinal()];
-        double rp = mObs[RP.ordinal()];
-        double c0 = !Double.isNaN(bp) && !Double.isNaN(rp) ? GaiaBandExtinction.dereddenedBpRp(bp - rp, ebv) : 1.0;
+        double bp = s.mObs[BP.ordinal()];
+        double rp = s.mObs[RP.ordinal()];
+        double c0 = !Double.isNaN(bp) && !Double.isNaN(rp) ? GaiaBandExtinction.dereddenedBpRp(bp - rp, s.ebv) : 1.0;
         c0 = Math.max(-0.5, Math.min(5.0, c0));
-        rBand[G.ordinal()] = GaiaBandExtinction.rG(c0);
-        rBand[BP.ordinal()] = GaiaBandExtinction.rBp(c0);
-        rBand[RP.ordinal()] = GaiaBandExtinction.rRp(c0);
+        s.rBand[G.ordinal()] = GaiaBandExtinction.rG(c0);
+        s.rBand[BP.ordinal()] = GaiaBandExtinction.rBp(c0);
+        s.rBand[RP.ordinal()] = GaiaBandExtinction.rRp(c0);
         for (int b = 0; b < Band.COUNT; b++) {
-            m0[b] = mObs[b] - rBand[b] * ebv;
+            s.m0[b] = s.mObs[b] - s.rBand[b] * s.ebv;
         }
     }
 
@@ -478,14 +498,15 @@ public final class StarDeriver {
     /** V₀ and its error: measured V, or G converted with BP−RP (Riello et al. 2021). */
     private long visualMagnitude() {
         int vi = V.ordinal();
+        double[] m0 = s.m0;
         vObserved = !Double.isNaN(m0[vi]);
-        if (!valuesOnly) {
-            java.util.Arrays.fill(cV, 0);
+        if (!s.valuesOnly) {
+            Arrays.fill(cV, 0);
         }
         if (vObserved) {
             v0 = m0[vi];
-            cV[vi] = sm[vi];
-            cV[SRC_EBV] = -rBand[vi] * sEbv;
+            cV[vi] = s.sm[vi];
+            cV[ErrorSource.EBV] = -s.rBand[vi] * s.sEbv;
             return 0;
         }
         v0 = Double.NaN;
@@ -499,139 +520,130 @@ public final class StarDeriver {
         if (!GaiaToJohnsonRiello2021.inRange(c0)) {
             return 0;
         }
-        v0 = m0[g] - GaiaToJohnsonRiello2021.gMinusV(c0);
+        v0 = m0[g] - GaiaToJohnsonRiello2021.gMinusV(c0) + dz(ErrorSource.GV, GaiaToJohnsonRiello2021.SCATTER_MAG);
         double dc = GaiaToJohnsonRiello2021.dGMinusVdC(c0);
-        cV[g] = sm[g];
-        cV[bp] = -dc * sm[bp];
-        cV[rp] = dc * sm[rp];
-        cV[SRC_EBV] = (-rBand[g] + dc * (rBand[bp] - rBand[rp])) * sEbv;
-        cV[SRC_GV] = GaiaToJohnsonRiello2021.SCATTER_MAG;
+        cV[g] = s.sm[g];
+        cV[bp] = -dc * s.sm[bp];
+        cV[rp] = dc * s.sm[rp];
+        cV[ErrorSource.EBV] = (-s.rBand[g] + dc * (s.rBand[bp] - s.rBand[rp])) * s.sEbv;
+        cV[ErrorSource.GV] = GaiaToJohnsonRiello2021.SCATTER_MAG;
         return V_FROM_G.mask();
     }
 
-    /** Evolved stars: giant relations with the log g prior; main-sequence (dwarf and subgiant) ones if none apply. */
-    private void estimateEvolved() {
-        estimateTeff(LuminosityClass.EVOLVED, settings.giantLoggPrior(), settings.giantLoggPriorErr());
-        if (tCount == 0) {
-            boolean anyGiantColour = tAnyColour;
-            boolean anyGiantOut = tAnyOutOfRange;
-            estimateTeff(LuminosityClass.MAIN_SEQUENCE, settings.giantLoggPrior(), settings.giantLoggPriorErr());
-            tAnyColour |= anyGiantColour;
-            tAnyOutOfRange |= anyGiantOut;
+    /** Contributions to the absolute Ks magnitude (the M-dwarf radius and mass relations' variable). */
+    private void absoluteKs(StarResult out) {
+        if (s.valuesOnly) {
+            return;
         }
+        Arrays.fill(cKs, 0);
+        int k = KS.ordinal();
+        cKs[k] = s.sm[k];
+        cKs[ErrorSource.EBV] = -s.rBand[k] * s.sEbv;
+        cKs[ErrorSource.MU] = Double.isNaN(sMu) ? 0 : -sMu;
+    }
+
+    /** Evolved stars: giant relations with the log g prior; main-sequence (FGK) ones if none apply; hot blend. */
+    private void estimateEvolved() {
+        double sLogg = settings.giantLoggPriorErr();
+        double logg = settings.giantLoggPrior() + dz(ErrorSource.LOGG, sLogg);
+        estimate(LuminosityClass.EVOLVED, logg, sLogg);
     }
 
     /**
-     * Inverse-variance mean of the Teff of every usable relation of class {@code cls}.
-     *
-     * <p>Weights: w_i = 1 / (σ_rel,i² + (∂T_i/∂X_i)² σ_X,i²). The error of the mean is propagated to first order
-     * through every shared input, not averaged down as if the colours were independent: the gradient of the mean
-     * with respect to each band magnitude (a band appears in several colours), E(B−V), [Fe/H] and log g is
-     * accumulated, and σ²(T̄) = Σ_b (∂T̄/∂m_b)² σ_b² + (∂T̄/∂E)² σ_E² + (∂T̄/∂[Fe/H])² σ_[Fe/H]² + (∂T̄/∂log g)² σ_g²
-     * + Σ_i (w_i/W)² σ_rel,i² + zero point². Colours outside a relation's range are not used, but a colour beyond an
-     * edge by more than twice its error bounds Teff (redder than the red edge: cooler than that edge's Teff); an
-     * in-range mean that breaks such a bound is flagged as a disagreement.
+     * Teff of class {@code cls}: the regimes' estimates blended (see {@link Regime}). Main sequence: M dwarf, FGK and
+     * hot; evolved: giant (FGK dwarf relations if no giant relation applies) and hot.
      */
-    private void estimateTeff(LuminosityClass cls, double logg, double sLogg) {
-        double sumW = 0;
-        double sumWT = 0;
-        double zp = 0;
-        int n = 0;
-        long mask = 0;
-        boolean anyColour = false;
-        boolean anyOut = false;
-        boolean extrapolated = false;
-        boolean usesLogg = false;
-        double tUpper = Double.POSITIVE_INFINITY;
-        double tLower = 0;
-        java.util.Arrays.fill(gradBand, 0);
-        double gEbv = 0;
-        double gFeh = 0;
-        double gLogg = 0;
-        double scatterVar = 0;
-        for (int k = 0; k < relations.length; k++) {
-            TeffRelation r = relations[k];
-            if (r.appliesTo() != cls) {
-                continue;
+    private void estimate(LuminosityClass cls, double logg, double sLogg) {
+        double[] off = drawTeffOffsetK;
+        TeffEstimator f = estMain;
+        if (cls == LuminosityClass.EVOLVED) {
+            f.estimate(Regime.GIANT, logg, sLogg, off, 0);
+            if (f.n == 0) {
+                boolean anyColour = f.anyColour;
+                boolean anyOut = f.anyOut;
+                double upper = f.tUpper;
+                double lower = f.tLower;
+                f.estimate(Regime.FGK_DWARF, logg, sLogg, off, 0);
+                f.anyColour |= anyColour;
+                f.anyOut |= anyOut;
+                f.tUpper = Math.min(f.tUpper, upper);
+                f.tLower = Math.max(f.tLower, lower);
             }
-            int bi = r.blue().ordinal();
-            int ri = r.red().ordinal();
-            if (Double.isNaN(m0[bi]) || Double.isNaN(m0[ri])) {
-                continue;
-            }
-            anyColour = true;
-            double x = m0[bi] - m0[ri];
-            double sx2 = sm[bi] * sm[bi] + sm[ri] * sm[ri] + sq((rBand[bi] - rBand[ri]) * sEbv);
-            boolean in = r.inRange(x, feh);
-            if (!in) {
-                anyOut = true;
-                double margin = 2 * Math.sqrt(sx2);
-                if (x > r.colourMax() + margin) {
-                    tUpper = Math.min(tUpper, r.teff(r.colourMax(), feh, logg));
-                } else if (x < r.colourMin() - margin) {
-                    tLower = Math.max(tLower, r.teff(r.colourMin(), feh, logg));
-                }
-                if (!settings.allowExtrapolation()) {
-                    continue;
-                }
-            }
-            double t = r.teff(x, feh, logg);
-            if (drawTeffOffsetK != null) {
-                t += drawTeffOffsetK[k];
-            }
-            if (!(t >= TEFF_SANE_MIN_K && t <= TEFF_SANE_MAX_K)) {
-                continue;
-            }
-            double dx = r.dTeffDColour(x, feh, logg);
-            double w = 1 / (dx * dx * sx2 + sq(r.scatterK()));
-            tEst[n] = t;
-            wEst[n] = w;
-            n++;
-            sumW += w;
-            sumWT += w * t;
-            gradBand[bi] += w * dx;
-            gradBand[ri] -= w * dx;
-            gEbv -= w * dx * (rBand[bi] - rBand[ri]);
-            gFeh += w * r.dTeffDFeh(x, feh, logg);
-            gLogg += w * r.dTeffDLogg(x, feh);
-            scatterVar += w * w * sq(r.scatterK());
-            zp = Math.max(zp, r.zeroPointK());
-            mask |= 1L << relationIndex[k];
-            extrapolated |= !in;
-            usesLogg |= r.form() == TeffRelation.Form.GAIA2021;
+            estM.clear();
+        } else {
+            f.estimate(Regime.FGK_DWARF, logg, sLogg, off, 0);
+            estM.estimate(Regime.M_DWARF, logg, sLogg, off, Regime.M_BLEND_HI_K);
         }
-        tCount = n;
-        tAnyColour = anyColour;
-        tAnyOutOfRange = anyOut;
-        tExtrapolated = extrapolated;
-        tUsesLogg = usesLogg;
-        tMask = mask;
-        tBoundBroken = false;
-        if (n == 0) {
+        estHot.estimate(Regime.HOT, logg, sLogg, off, 0);
+        Regime fRegime = cls == LuminosityClass.EVOLVED && (f.mask & giantMask()) != 0 ? Regime.GIANT : Regime.FGK_DWARF;
+        blend(f, fRegime);
+    }
+
+    private long giantMaskCache = -1;
+
+    private long giantMask() {
+        if (giantMaskCache < 0) {
+            long m = 0;
+            List<TeffRelation> all = TeffRelations.all();
+            for (int i = 0; i < all.size(); i++) {
+                if (all.get(i).regime() == Regime.GIANT) {
+                    m |= 1L << i;
+                }
+            }
+            giantMaskCache = m;
+        }
+        return giantMaskCache;
+    }
+
+    /** Blends the main (FGK or giant), M-dwarf and hot estimates with the regime weights. */
+    private void blend(TeffEstimator f, Regime fRegime) {
+        TeffEstimator m = estM;
+        TeffEstimator h = estHot;
+        double wm = m.n > 0 ? Regime.mDwarfWeight(m.mean) : 0;
+        double wh = h.n > 0 ? Regime.hotWeight(h.mean) : 0;
+        double wf = f.n > 0 ? 1 - wm - wh : 0;
+        if (wf < 0) {
+            wf = 0;
+        }
+        double sum = wf + wm + wh;
+        tAnyColour = f.anyColour || m.anyColour || h.anyColour;
+        tUsesLogg = f.usesLogg && wf > 0;
+        // bounds from colours beyond an edge: the M relations bound only from the red side, the hot one only from the
+        // blue side (their other edges are where another regime takes over, not where the star's colour says stop)
+        double upper = Math.min(f.tUpper, m.tUpper);
+        double lower = Math.max(f.tLower, h.tLower);
+        if (!(sum > 0)) {
             tMean = tErr = tChi2 = Double.NaN;
+            tMask = 0;
+            tCount = 0;
+            tExtrapolated = false;
+            tBoundBroken = false;
+            wM = wHot = 0;
+            tRegime = null;
             return;
         }
-        tMean = sumWT / sumW;
-        if (valuesOnly) {
-            tErr = tChi2 = Double.NaN;
+        wf /= sum;
+        wm /= sum;
+        wh /= sum;
+        wM = wm;
+        wHot = wh;
+        tMean = (wf > 0 ? wf * f.mean : 0) + (wm > 0 ? wm * m.mean : 0) + (wh > 0 ? wh * h.mean : 0);
+        tMask = (wf > 0 ? f.mask : 0) | (wm > 0 ? m.mask : 0) | (wh > 0 ? h.mask : 0);
+        tExtrapolated = (wf > 0 && f.extrapolated) || (wm > 0 && m.extrapolated) || (wh > 0 && h.extrapolated);
+        TeffEstimator dom = wm >= wf && wm >= wh ? m : wh >= wf ? h : f;
+        tRegime = dom == m ? Regime.M_DWARF : dom == h ? Regime.HOT : fRegime;
+        tCount = dom.n;
+        tChi2 = dom.chi2;
+        if (s.valuesOnly) {
+            tErr = Double.NaN;
+            tBoundBroken = false;
             return;
         }
-        java.util.Arrays.fill(cT, 0);
-        for (int b = 0; b < Band.COUNT; b++) {
-            cT[b] = gradBand[b] == 0 ? 0 : gradBand[b] * sm[b] / sumW;
+        for (int j = 0; j < NSRC; j++) {
+            cT[j] = (wf > 0 ? wf * f.c[j] : 0) + (wm > 0 ? wm * m.c[j] : 0) + (wh > 0 ? wh * h.c[j] : 0);
         }
-        cT[SRC_EBV] = gEbv * sEbv / sumW;
-        cT[SRC_FEH] = gFeh * sFeh / sumW;
-        cT[SRC_LOGG] = gLogg * sLogg / sumW;
-        cT[SRC_SCATTER] = Math.sqrt(scatterVar) / sumW;
-        cT[SRC_ZP] = zp;
         tErr = norm(cT);
-        double chi2 = 0;
-        for (int i = 0; i < n; i++) {
-            chi2 += wEst[i] * sq(tEst[i] - tMean);
-        }
-        tChi2 = chi2;
-        tBoundBroken = tMean > tUpper + 2 * tErr || tMean < tLower - 2 * tErr;
+        tBoundBroken = tMean > upper + 2 * tErr || tMean < lower - 2 * tErr;
     }
 
     /** BC, bolometric magnitudes, L, R and angular diameter from the current Teff estimate. */
@@ -641,40 +653,96 @@ public final class StarDeriver {
         out.bcV = out.bcVErr = out.mbolMag = out.mbolErrMag = Double.NaN;
         out.lumLsun = out.lumErrLsun = out.lumW = out.radiusRsun = out.radiusErrRsun = Double.NaN;
         out.angDiamMas = out.angDiamErrMas = Double.NaN;
+        wRadiusM = 0;
         if (Double.isNaN(tMean)) {
             return;
         }
         double t = tMean;
-        out.bcV = BolometricCorrectionFlower1996.bcV(t);
-        double beta = BolometricCorrectionFlower1996.dBcVdTeff(t);
-        out.bcVErr = Math.abs(beta) * tErr;
-        if (Double.isNaN(v0)) {
-            return;
-        }
-        double mbolApp = v0 + out.bcV;
+        boolean vo = s.valuesOnly;
         double tRatio2 = sq(Iau2015.TEFF_SUN_K / t);
-        // apparent bolometric magnitude and ln θ: V₀ and Teff share sources (V is in the colours), so their
-        // contributions are added source by source before squaring
-        if (!valuesOnly) {
-            for (int j = 0; j < NSRC; j++) {
-                cMbol[j] = cV[j] + beta * cT[j];
-                work[j] = -0.2 * LN10 * cMbol[j] - 2 * cT[j] / t;
+        // the BC_V route (FGK, giants, hot stars; M dwarfs without a usable M_Ks)
+        double mbolAbsBc = Double.NaN;
+        double lnThetaBc = Double.NaN;
+        double beta = BolometricCorrectionFlower1996.dBcVdTeff(t);
+        if (wM < 1 || !mRadiusRoute(haveDist)) {
+            out.bcV = BolometricCorrectionFlower1996.bcV(t);
+            out.bcVErr = Math.abs(beta) * tErr;
+        }
+        if (!Double.isNaN(v0)) {
+            double bc = BolometricCorrectionFlower1996.bcV(t);
+            double mbolApp = v0 + bc;
+            if (!vo) {
+                // V₀ and Teff share sources (V is in the colours): contributions are added source by source
+                for (int j = 0; j < NSRC; j++) {
+                    cMbol[j] = cV[j] + beta * cT[j];
+                    work[j] = -0.2 * LN10 * cMbol[j] - 2 * cT[j] / t;
+                }
+            }
+            double lumAt10pc = Math.pow(10, -0.4 * (mbolApp - BolometricCorrectionFlower1996.MBOL_SUN));
+            lnThetaBc = Math.log(THETA_SUN_AT_10PC_MAS * Math.sqrt(lumAt10pc) * tRatio2);
+            if (haveDist) {
+                mbolAbsBc = mbolApp - mu;
+                if (!vo) {
+                    cMbol[ErrorSource.MU] = -sMu;
+                }
             }
         }
-        double lumAt10pc = Math.pow(10, -0.4 * (mbolApp - BolometricCorrectionFlower1996.MBOL_SUN));
-        out.angDiamMas = THETA_SUN_AT_10PC_MAS * Math.sqrt(lumAt10pc) * tRatio2;
-        out.angDiamErrMas = valuesOnly ? Double.NaN : out.angDiamMas * norm(work);
+        // the M-dwarf route: R from M_Ks (Mann et al. 2015), L from Stefan–Boltzmann
+        double mbolAbsM = Double.NaN;
+        double lnRM = Double.NaN;
+        if (wM > 0 && mRadiusRoute(haveDist)) {
+            double mKs = out.absMag[KS.ordinal()];
+            double fehForm = s.fehMeasured ? s.feh : Double.NaN;
+            double frac = RadiusMann2015.scatterFrac(fehForm);
+            lnRM = Math.log(RadiusMann2015.radiusRsun(mKs, fehForm)) + dz(ErrorSource.RADIUS_REL, frac);
+            double lnLM = 2 * lnRM + 4 * Math.log(t / Iau2015.TEFF_SUN_K);
+            mbolAbsM = BolometricCorrectionFlower1996.MBOL_SUN - 2.5 / LN10 * lnLM;
+            if (!vo) {
+                double dR = RadiusMann2015.dLnRdMks(mKs, fehForm);
+                for (int j = 0; j < NSRC; j++) {
+                    cLnRM[j] = dR * cKs[j];
+                }
+                cLnRM[ErrorSource.FEH] += RadiusMann2015.dLnRdFeh(fehForm) * s.sFeh;
+                cLnRM[ErrorSource.RADIUS_REL] = frac;
+                for (int j = 0; j < NSRC; j++) {
+                    cMbolM[j] = -2.5 / LN10 * (2 * cLnRM[j] + 4 * cT[j] / t);
+                    // ln θ = ln R − ln d, and ln d grows with μ as ln10/5
+                    workM[j] = cLnRM[j] - (j == ErrorSource.MU ? LN10 / 5 * sMu : 0);
+                }
+            }
+            wRadiusM = Double.isNaN(mbolAbsBc) ? 1 : wM;
+        }
+        double w = wRadiusM;
+        // angular diameter: θ = 2R/d on the radius route, from the bolometric flux otherwise; blended in log
+        double lnThetaM = w > 0 ? lnRM + Math.log(THETA_SUN_AT_10PC_MAS * 10 / out.distPc) : Double.NaN;
+        double lnTheta = w == 0 ? lnThetaBc : w == 1 ? lnThetaM : w * lnThetaM + (1 - w) * lnThetaBc;
+        out.angDiamMas = Math.exp(lnTheta);
+        if (!vo && !Double.isNaN(lnTheta)) {
+            double v2 = 0;
+            for (int j = 0; j < NSRC; j++) {
+                v2 += sq((w > 0 ? w * workM[j] : 0) + (w < 1 ? (1 - w) * work[j] : 0));
+            }
+            out.angDiamErrMas = out.angDiamMas * Math.sqrt(v2);
+        }
         if (!haveDist) {
             return;
         }
-        double mbolAbs = mbolApp - mu;
-        if (valuesOnly) {
-            sMbol = Double.NaN;
-        } else {
-            cMbol[SRC_MU] = -sMu;
-            sMbol = norm(cMbol);
+        double mbolAbs = w == 0 ? mbolAbsBc : w == 1 ? mbolAbsM : w * mbolAbsM + (1 - w) * mbolAbsBc;
+        if (Double.isNaN(mbolAbs)) {
+            return;
+        }
+        double sMbol = Double.NaN;
+        if (!vo) {
             for (int j = 0; j < NSRC; j++) {
-                cLnR[j] = -0.2 * LN10 * cMbol[j] - 2 * cT[j] / t;
+                double bcPart = w < 1 ? (1 - w) * cMbol[j] : 0;
+                double mPart = w > 0 ? w * cMbolM[j] : 0;
+                work[j] = bcPart + mPart;
+            }
+            sMbol = norm(work);
+            for (int j = 0; j < NSRC; j++) {
+                // ln R = ½ ln L − 2 ln(Teff/Teff⊙) with ln L = −0.4 ln10 M_bol: holds for both routes and their blend
+                cLnR[j] = -0.2 * LN10 * work[j] - 2 * cT[j] / t;
+                cMbol[j] = work[j];
             }
         }
         out.mbolMag = mbolAbs - BolometricCorrectionFlower1996.MBOL_SUN + DerivedConstants.MBOL_SUN_IAU;
@@ -683,31 +751,57 @@ public final class StarDeriver {
         out.lumErrLsun = out.lumLsun * 0.4 * LN10 * sMbol;
         out.lumW = out.lumLsun * Iau2015.L_SUN_W;
         out.radiusRsun = Math.sqrt(out.lumLsun) * tRatio2;
-        out.radiusErrRsun = valuesOnly ? Double.NaN : out.radiusRsun * norm(cLnR);
+        out.radiusErrRsun = vo ? Double.NaN : out.radiusRsun * norm(cLnR);
     }
 
+    /** Whether the M-dwarf radius relation can be used: a distance and an absolute Ks inside its range. */
+    private boolean mRadiusRoute(boolean haveDist) {
+        return haveDist && RadiusMann2015.inRange(s.m0[KS.ordinal()] - mu);
+    }
+
+    /** Mass (Eker et al. 2018 from L; Mann et al. 2019 from M_Ks for M dwarfs, blended), density, log g. */
     private void massChain(StarResult out) {
         if (!(out.lumLsun > 0 && out.radiusRsun > 0)) {
             return;
         }
+        boolean vo = s.valuesOnly;
         double logL = Math.log10(out.lumLsun);
-        double logM = MassLuminosityEker2018.logMass(logL);
-        if (Double.isNaN(logM)) {
+        double logME = MassLuminosityEker2018.logMass(logL);
+        double mKs = out.absMag[KS.ordinal()];
+        double fehForm = s.fehMeasured ? s.feh : Double.NaN;
+        double logMM = wM > 0 ? MassMann2019.logMass(mKs, fehForm) : Double.NaN;
+        double w = Double.isNaN(logMM) ? 0 : Double.isNaN(logME) ? 1 : wM;
+        if (w == 0 && Double.isNaN(logME)) {
             return;
         }
-        double m = Math.pow(10, logM);
-        double slope = MassLuminosityEker2018.dLogMassDLogL(logL);
+        double ekerLnScatter = MassLuminosityEker2018.lnMassScatter(logL);
+        double mannFrac = MassMann2019.scatterFrac(fehForm);
+        double lnM = (w < 1 ? (1 - w) * (logME * LN10 + dz(ErrorSource.MASS_REL, ekerLnScatter)) : 0)
+                + (w > 0 ? w * (logMM * LN10 + dz(ErrorSource.MASS_REL, mannFrac)) : 0);
+        double logM = lnM / LN10;
+        double m = Math.exp(lnM);
         double r = out.radiusRsun;
-        // ln M = ln10 · slope · (−0.4 M_bol); ln ρ = ln M − 3 ln R; log g = (ln M − 2 ln R) / ln10, source by source
-        // (a Monte Carlo draw needs no errors: NaN, and the loop is skipped)
-        double varLnM = valuesOnly ? Double.NaN : 0;
+        double varLnM = vo ? Double.NaN : 0;
         double varLnRho = varLnM;
         double varLnG = varLnM;
-        for (int j = 0; j < NSRC && !valuesOnly; j++) {
-            double lnM = LN10 * slope * -0.4 * cMbol[j];
-            varLnM += lnM * lnM;
-            varLnRho += sq(lnM - 3 * cLnR[j]);
-            varLnG += sq(lnM - 2 * cLnR[j]);
+        if (!vo) {
+            double slope = w < 1 ? MassLuminosityEker2018.dLogMassDLogL(logL) : 0;
+            double dM = w > 0 ? MassMann2019.dLnMdMks(mKs, fehForm) : 0;
+            for (int j = 0; j < NSRC; j++) {
+                double e = w < 1 ? LN10 * slope * -0.4 * cMbol[j] : 0;
+                double mm = w > 0 ? dM * cKs[j] : 0;
+                if (j == ErrorSource.FEH && w > 0) {
+                    mm += MassMann2019.dLnMdFeh(fehForm) * s.sFeh;
+                }
+                if (j == ErrorSource.MASS_REL) {
+                    e = ekerLnScatter;
+                    mm = mannFrac;
+                }
+                double lnMj = (1 - w) * e + w * mm;
+                varLnM += lnMj * lnMj;
+                varLnRho += sq(lnMj - 3 * cLnR[j]);
+                varLnG += sq(lnMj - 2 * cLnR[j]);
+            }
         }
         out.massMsun = m;
         out.massErrMsun = m * Math.sqrt(varLnM);
@@ -720,10 +814,10 @@ public final class StarDeriver {
 
     private void crossCheckDiameter(StarResult out) {
         int k = KS.ordinal();
-        if (!vObserved || Double.isNaN(m0[k])) {
+        if (!vObserved || Double.isNaN(s.m0[k])) {
             return;
         }
-        out.angDiamSbrMas = SurfaceBrightnessKervella2004.angularDiameterMas(v0, m0[k]);
+        out.angDiamSbrMas = SurfaceBrightnessKervella2004.angularDiameterMas(v0, s.m0[k]);
     }
 
     /** No infinity leaves the core: anything not finite becomes NaN (NULL). */

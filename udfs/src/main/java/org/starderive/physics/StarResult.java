@@ -32,6 +32,8 @@ public final class StarResult {
     public final double[] absMag = new double[Band.COUNT];
     public final double[] absMagErr = new double[Band.COUNT];
     public LuminosityClass lumClass;
+    /** The calibration regime that gave {@link #teffK} (the dominant one in a blend); null without Teff. */
+    public Regime regime;
     public double teffK;
     public double teffErrK;
     /** Bit i set: relation i of {@link TeffRelations#all()} contributed to {@link #teffK}. */
@@ -63,6 +65,7 @@ public final class StarResult {
         flags = 0;
         distMethod = DistanceMethod.NONE;
         lumClass = null;
+        regime = null;
         teffRelations = 0;
         parallaxCorrMas = distPc = distLoPc = distHiPc = distModulusMag = distModulusErrMag = Double.NaN;
         ebvUsed = avMag = Double.NaN;

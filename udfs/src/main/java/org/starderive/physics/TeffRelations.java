@@ -5,8 +5,8 @@ import java.util.Collections;
 import java.util.List;
 
 import static org.starderive.physics.Band.*;
-import static org.starderive.physics.LuminosityClass.EVOLVED;
-import static org.starderive.physics.LuminosityClass.MAIN_SEQUENCE;
+import static org.starderive.physics.Regime.FGK_DWARF;
+import static org.starderive.physics.Regime.GIANT;
 
 /**
  * The catalogue of colour–Teff relations the core can use. Every coefficient is the published one:
@@ -18,6 +18,16 @@ import static org.starderive.physics.LuminosityClass.MAIN_SEQUENCE;
  *       the authors); colour limits per class; [Fe/H] clipped at −4; add 20 K for the zero point. The papers'
  *       quoted scatter for these two colours is not on our reference sheet: 80 K (BP−RP) and 60 K (G−Ks) are
  *       conservative values from memory.</li>
+ *   <li>Mann, Feiden, Gaidos, Boyajian &amp; von Braun 2015, ApJ 804, 64, Table 2, with the coefficients as reprinted
+ *       in the erratum Mann et al. 2016, ApJ 819, 87 — M dwarfs, 2700–4100 K, −0.6 &lt; [Fe/H] &lt; +0.5; V−J, V−I_C
+ *       and BP−RP, each plain, with [Fe/H] (used only for a measured [Fe/H]) and, for V−J and V−I_C, with J−H. The
+ *       table note's 60 K is added in quadrature to each scatter. The BP−RP relations were calibrated on synthetic
+ *       photometry with pre-launch passbands and are reported to run 90–170 K hot on real space-mission BP−RP
+ *       (one source): we add a further 100 K in quadrature (our choice). Each polynomial turns back up near
+ *       2800 K: colours redder than the turnover are out of range, never evaluated.</li>
+ *   <li>Flower 1996, ApJ 469, 355, log Teff(B−V) for main-sequence stars, subgiants and giants, with the coefficients
+ *       as corrected by Torres 2010, AJ 140, 1158 — the hot regime (used above 7000 K, blended to 7500 K);
+ *       B−V −0.40 … 0.50 here. No scatter is tabulated: 2 % of Teff (our choice).</li>
  * </ul>
  * The list order is fixed; {@link #index(TeffRelation)} is a stable small integer used for the bit set that
  * records which relations a star's Teff came from.
@@ -28,6 +38,14 @@ public final class TeffRelations {
     public static final String C10 = "Casagrande et al. 2010, A&A 512, A54, Table 4";
     public static final String GHB09 = "Gonzalez Hernandez & Bonifacio 2009, A&A 497, 497, Table 5";
     public static final String C21 = "Casagrande et al. 2021, MNRAS 507, 2684";
+    public static final String M15 = "Mann et al. 2015, ApJ 804, 64, Table 2 (erratum: Mann et al. 2016, ApJ 819, 87)";
+    public static final String F96 = "Flower 1996, ApJ 469, 355; coefficients as corrected by Torres 2010, AJ 140, 1158";
+    /** Added in quadrature to every Mann et al. 2015 scatter (note to their Table 2). */
+    public static final double M15_SCALE_K = 60.0;
+    /** Added in quadrature to the Mann et al. 2015 BP−RP scatter: real versus pre-launch passbands (our choice). */
+    public static final double M15_BPRP_EXTRA_K = 100.0;
+    /** Relative scatter given to the Flower 1996 relation, which tabulates none (our choice). */
+    public static final double F96_SCATTER_FRAC = 0.02;
 
     private static final List<TeffRelation> ALL;
 
@@ -53,28 +71,66 @@ public final class TeffRelations {
                 4.5138, -203.7774, 126.6981, -14.7442, 40.7376};
         double[] gKs = {8031.7804, -1815.3523, 0, 70.7201, -1.7309, 252.9647, -342.0817, 161.3031, -26.7714, 0,
                 -120.1133, 42.6723, 0, 0, 10.0433};
-        l.add(c21(BP, RP, MAIN_SEQUENCE, 0.20, 2.00, bpRp, 80));
-        l.add(c21(BP, RP, EVOLVED, 0.20, 2.55, bpRp, 80));
-        l.add(c21(G, KS, MAIN_SEQUENCE, 0.20, 2.80, gKs, 60));
-        l.add(c21(G, KS, EVOLVED, 0.20, 3.90, gKs, 60));
+        l.add(c21(BP, RP, FGK_DWARF, 0.20, 2.00, bpRp, 80));
+        l.add(c21(BP, RP, GIANT, 0.20, 2.55, bpRp, 80));
+        l.add(c21(G, KS, FGK_DWARF, 0.20, 2.80, gKs, 60));
+        l.add(c21(G, KS, GIANT, 0.20, 3.90, gKs, 60));
+        // Mann et al. 2015 (erratum 2016), Table 2: a, b, c, d, e, f, g and sigma (K); per colour the [Fe/H] form
+        // first, then the J-H form, then the plain one (the first usable form of a colour is the one used)
+        l.add(m15(V, J, TeffRelation.Aux.FEH, new double[] {2.515, -1.054, 0.2965, -0.04150, 0.002245, 0.05262, 0}, 42));
+        l.add(m15(V, J, TeffRelation.Aux.JH, new double[] {2.769, -1.421, 0.4284, -0.06133, 0.003310, 0.1333, 0.05416}, 48));
+        l.add(m15(V, J, TeffRelation.Aux.NONE, new double[] {2.840, -1.3453, 0.3906, -0.0546, 0.002913, 0, 0}, 55));
+        l.add(m15(V, IC, TeffRelation.Aux.FEH, new double[] {1.901, -0.6564, 0.1471, -0.01274, 0, 0.04697, 0}, 48));
+        l.add(m15(V, IC, TeffRelation.Aux.JH, new double[] {1.568, -0.4381, 0.07749, -0.005610, 0, 0.2441, -0.09257}, 52));
+        l.add(m15(V, IC, TeffRelation.Aux.NONE, new double[] {2.455, -1.5701, 0.6891, -0.1500, 0.01254, 0, 0}, 53));
+        l.add(m15(BP, RP, TeffRelation.Aux.FEH, new double[] {2.835, -1.893, 0.7860, -0.1594, 0.01243, 0.04417, 0}, 45));
+        l.add(m15(BP, RP, TeffRelation.Aux.NONE, new double[] {3.245, -2.4309, 1.043, -0.2127, 0.01649, 0, 0}, 52));
+        // Flower 1996 / Torres 2010, log Teff(B-V), main sequence, subgiants and giants: c0..c7
+        l.add(new TeffRelation("F96/B-V", TeffRelation.Form.FLOWER1996, TeffRelation.Aux.NONE, B, V, Regime.HOT,
+                -0.40, 0.50, -5.0, 1.0, -5.0, 0, Double.POSITIVE_INFINITY,
+                new double[] {3.979145106714099, -0.654992268598245, 1.740690042385095, -4.608815154057166,
+                        6.792599779944473, -5.396909891322525, 2.192970376522490, -0.359495739295671},
+                0, F96_SCATTER_FRAC, 0.0, F96));
         ALL = Collections.unmodifiableList(l);
         if (ALL.size() > 63) {
             throw new IllegalStateException("Relation bit set holds at most 63 relations");
         }
     }
 
+    private static TeffRelation m15(Band blue, Band red, TeffRelation.Aux aux, double[] k, double sigma) {
+        double extra = blue == BP ? M15_BPRP_EXTRA_K : 0;
+        double scatter = Math.sqrt(sigma * sigma + M15_SCALE_K * M15_SCALE_K + extra * extra);
+        String suffix = aux == TeffRelation.Aux.FEH ? "+FeH" : aux == TeffRelation.Aux.JH ? "+JH" : "";
+        return new TeffRelation("M15/" + blue.label() + "-" + red.label() + suffix, TeffRelation.Form.MANN2015, aux,
+                blue, red, Regime.M_DWARF, 0.5, mannTurnover(k), -0.6, 0.5, -0.6, 2700, 4100, k, scatter, 0, 0.0, M15);
+    }
+
+    /**
+     * The colour (above 0.5 mag) at which a Mann et al. 2015 polynomial stops falling with colour and turns back up
+     * (about 2800 K); 20 mag when it never does. Colours at or beyond it are outside the relation.
+     */
+    static double mannTurnover(double[] k) {
+        for (double x = 0.5; x < 20; x += 0.001) {
+            double d = k[1] + x * (2 * k[2] + x * (3 * k[3] + x * 4 * k[4]));
+            if (!(d < 0)) {
+                return x;
+            }
+        }
+        return 20;
+    }
+
     private static TeffRelation c10(Band blue, Band red, double xmin, double xmax, double fehMax, double[] a, double sigma) {
         return new TeffRelation("C10/" + blue.label() + "-" + red.label(), TeffRelation.Form.THETA, blue, red,
-                MAIN_SEQUENCE, xmin, xmax, -5.0, fehMax, -3.5, a, sigma, 15.0, C10);
+                FGK_DWARF, xmin, xmax, -5.0, fehMax, -3.5, a, sigma, 15.0, C10);
     }
 
     private static TeffRelation ghb09(Band blue, Band red, double xmin, double xmax, double[] b, double sigma) {
         return new TeffRelation("GHB09/" + blue.label() + "-" + red.label(), TeffRelation.Form.THETA, blue, red,
-                EVOLVED, xmin, xmax, -4.0, 0.2, -4.0, b, sigma, 0.0, GHB09);
+                GIANT, xmin, xmax, -4.0, 0.2, -4.0, b, sigma, 0.0, GHB09);
     }
 
-    private static TeffRelation c21(Band blue, Band red, LuminosityClass cls, double xmin, double xmax, double[] c, double sigma) {
-        String suffix = cls == MAIN_SEQUENCE ? "/dwarf" : "/giant";
+    private static TeffRelation c21(Band blue, Band red, Regime cls, double xmin, double xmax, double[] c, double sigma) {
+        String suffix = cls == FGK_DWARF ? "/dwarf" : "/giant";
         return new TeffRelation("C21/" + blue.label() + "-" + red.label() + suffix, TeffRelation.Form.GAIA2021, blue, red,
                 cls, xmin, xmax, -4.0, 1.0, -4.0, c, sigma, 20.0, C21);
     }

@@ -39,10 +39,11 @@ public final class DerivedSchema {
             c.add(d(StarColumns.absMag(b), "mag", "phys.magAbs", "extinction-corrected absolute magnitude in " + b.label()));
             c.add(d(StarColumns.absMagErr(b), "mag", "stat.error;phys.magAbs", "1-sigma error of abs_mag_" + b.suffix()));
         }
-        c.add(new DerivedColumn("lum_class", "string", "", "src.class.luminosity", "main_sequence or evolved (log g boundary of Ciardi et al. 2011); null when unknown"));
+        c.add(new DerivedColumn("lum_class", "string", "", "src.class.luminosity", "main_sequence or evolved (log g boundary of Ciardi et al. 2011; M_Ks for red stars); null when unknown"));
+        c.add(new DerivedColumn("regime", "string", "", "meta.code.class", "calibration regime that gave teff_k (dominant one in a blend): m_dwarf, fgk_dwarf, giant or hot; null when no Teff"));
         c.add(d("teff_k", "K", "phys.temperature.effective", "effective temperature: inverse-variance mean of the in-range colour relations"));
         c.add(d("teff_err_k", "K", "stat.error;phys.temperature.effective", "1-sigma error of teff_k incl. relation scatter and zero point"));
-        c.add(new DerivedColumn("teff_from", "string", "", "meta.ref", "ids of the colour-Teff relations combined into teff_k"));
+        c.add(new DerivedColumn("teff_from", "string", "", "meta.ref", "ids of the colour-Teff relations combined into teff_k (all regimes of a blend)"));
         c.add(d("teff_chi2", "", "stat.fit.chi2", "chi-square of the Teff estimates about their mean (two or more relations)"));
         c.add(d("bc_v", "mag", "phot.mag.bc", "bolometric correction in V (Flower 1996, Torres 2010 coefficients)"));
         c.add(d("bc_v_err", "mag", "stat.error;phot.mag.bc", "1-sigma error of bc_v from the Teff error"));
@@ -51,10 +52,10 @@ public final class DerivedSchema {
         c.add(d("lum_lsun", "solLum", "phys.luminosity", "luminosity in nominal solar luminosities (IAU 2015 B3)"));
         c.add(d("lum_err_lsun", "solLum", "stat.error;phys.luminosity", "1-sigma error of lum_lsun"));
         c.add(d("lum_w", "W", "phys.luminosity", "luminosity in watts"));
-        c.add(d("radius_rsun", "solRad", "phys.size.radius", "radius from the Stefan-Boltzmann law, nominal solar radii"));
+        c.add(d("radius_rsun", "solRad", "phys.size.radius", "radius: Stefan-Boltzmann law, or from M_Ks for M dwarfs (Mann et al. 2015); nominal solar radii"));
         c.add(d("radius_err_rsun", "solRad", "stat.error;phys.size.radius", "1-sigma error of radius_rsun"));
-        c.add(d("mass_msun", "solMass", "phys.mass", "mass from the main-sequence mass-luminosity relation (Eker et al. 2018); main sequence only"));
-        c.add(d("mass_err_msun", "solMass", "stat.error;phys.mass", "1-sigma error of mass_msun (relation scatter not included)"));
+        c.add(d("mass_msun", "solMass", "phys.mass", "main-sequence mass: from L (Eker et al. 2018), or from M_Ks for M dwarfs (Mann et al. 2019); main sequence only"));
+        c.add(d("mass_err_msun", "solMass", "stat.error;phys.mass", "1-sigma error of mass_msun incl. the mass relation's scatter"));
         c.add(d("density_kg_m3", "kg.m-3", "phys.density", "mean density"));
         c.add(d("density_err_kg_m3", "kg.m-3", "stat.error;phys.density", "1-sigma error of density_kg_m3"));
         c.add(d("density_rho_sun", "", "phys.density;arith.ratio", "mean density in units of the mean solar density"));

@@ -126,6 +126,7 @@ public final class StarDeriveUdf implements UDF1<Row, Row> {
             v[i++] = box(o.absMagErr[b]);
         }
         v[i++] = o.lumClass == null ? null : o.lumClass.label();
+        v[i++] = o.regime == null ? null : o.regime.label();
         v[i++] = box(o.teffK);
         v[i++] = box(o.teffErrK);
         v[i++] = teffFrom;

@@ -91,7 +91,7 @@ class StarDeriverPropertyTest {
                     assertTrue(MASS_NOT_APPLICABLE.isSet(f), ctx);
                 } else {
                     withMass++;
-                    assertTrue(r.massMsun >= 0.17 && r.massMsun <= 31.1 && r.lumClass == LuminosityClass.MAIN_SEQUENCE, ctx);
+                    assertTrue(r.massMsun >= 0.07 && r.massMsun <= 31.1 && r.lumClass == LuminosityClass.MAIN_SEQUENCE, ctx);
                 }
             }
             // the generator must exercise the good paths too, or the test proves little

@@ -61,9 +61,17 @@ class TeffRelationsTest {
     @Test
     void analyticDerivativesMatchFiniteDifferences() {
         for (TeffRelation r : TeffRelations.all()) {
-            double x = 0.5 * (r.colourMin() + r.colourMax());
+            double x = r.form() == TeffRelation.Form.MANN2015 ? 3.0 : 0.5 * (r.colourMin() + r.colourMax());
+            double jh = 0.6;
+            if (r.aux() == TeffRelation.Aux.JH) {
+                double da = (r.teff(x, -0.3, 4.4, jh + 1e-5) - r.teff(x, -0.3, 4.4, jh - 1e-5)) / 2e-5;
+                assertEquals(da, r.dTeffDAux(jh), 1e-3 * Math.max(1, Math.abs(da)), r.id());
+                assertEquals((r.teff(x + 1e-5, -0.3, 4.4, jh) - r.teff(x - 1e-5, -0.3, 4.4, jh)) / 2e-5,
+                        r.dTeffDColour(x, -0.3, 4.4, jh), 1e-2, r.id());
+                continue;
+            }
             double feh = -0.3;
-            double g = r.appliesTo() == LuminosityClass.MAIN_SEQUENCE ? 4.4 : 2.5;
+            double g = r.regime() == Regime.GIANT ? 2.5 : 4.4;
             double h = 1e-5;
             double dx = (r.teff(x + h, feh, g) - r.teff(x - h, feh, g)) / (2 * h);
             double df = (r.teff(x, feh + h, g) - r.teff(x, feh - h, g)) / (2 * h);
@@ -83,7 +91,7 @@ class TeffRelationsTest {
             assertTrue(r.scatterK() > 0);
             assertTrue(r.colourMin() < r.colourMax());
         }
-        assertEquals(17, TeffRelations.all().size());
+        assertEquals(26, TeffRelations.all().size());
         assertEquals("C10/B-V,GHB09/B-V", TeffRelations.describe(1L | (1L << 8)));
         assertThrows(IllegalArgumentException.class, () -> TeffRelations.byId("nope"));
     }

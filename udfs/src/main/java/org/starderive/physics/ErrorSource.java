@@ -1,0 +1,52 @@
+package org.starderive.physics;
+
+/**
+ * The one table of independent error sources, read by both uncertainty paths. Each source has a 1σ size per star;
+ * the first-order path ({@link StarDeriver#derive}) carries derivative × σ of every source through the chain and adds
+ * the contributions in quadrature at the end (so a source shared by two steps — V in a colour and in the magnitude —
+ * is correlated correctly); the Monte Carlo path ({@link MonteCarloDeriver}) draws one standard normal z per source
+ * and draw, and the chain applies z × σ of every source to the values. The σ are the same in both paths, by
+ * construction: both read them from the star's state set up in one place.
+ *
+ * <pre>
+ * source        σ (per star)                                        applied to
+ * ------------  --------------------------------------------------  ------------------------------------------------
+ * band b        the magnitude's error (no error: the band is unused) the band's magnitude
+ * EBV           E(B−V) error; without one, physics.ebv_err_default   E(B−V) (clipped at 0 in a draw)
+ * FEH           [Fe/H] error; without one or with no [Fe/H],         [Fe/H] (the assumed value carries its spread)
+ *               physics.feh_err_default
+ * LOGG          log g prior error of evolved stars                   the log g of the Gaia-band relations (evolved)
+ * SCATTER       each colour relation's own scatter, independent      that relation's Teff
+ *               between relations (one z per relation in a draw)
+ * ZP            temperature-scale zero points, one shared z          every relation's Teff, times its zero point
+ * GV            G→V conversion scatter (Riello et al. 2021)          V computed from G
+ * MU            the distance (inverse parallax or posterior)         the distance modulus (a draw samples a distance)
+ * RADIUS_REL    the M-dwarf radius relation's scatter                ln R from M_Ks (Mann et al. 2015)
+ * MASS_REL      the mass relation's scatter                          ln M (Mann et al. 2019; Eker et al. 2018)
+ * </pre>
+ */
+public final class ErrorSource {
+    private ErrorSource() {}
+
+    /** Sources 0 … Band.COUNT − 1 are the bands, by ordinal. */
+    public static final int EBV = Band.COUNT;
+    public static final int FEH = Band.COUNT + 1;
+    public static final int LOGG = Band.COUNT + 2;
+    public static final int SCATTER = Band.COUNT + 3;
+    public static final int ZP = Band.COUNT + 4;
+    public static final int GV = Band.COUNT + 5;
+    public static final int MU = Band.COUNT + 6;
+    public static final int RADIUS_REL = Band.COUNT + 7;
+    public static final int MASS_REL = Band.COUNT + 8;
+    /** Number of sources. */
+    public static final int COUNT = Band.COUNT + 9;
+
+    /** A short name of source {@code j}, for messages and tests. */
+    public static String name(int j) {
+        if (j < Band.COUNT) {
+            return "mag_" + Band.values()[j].suffix();
+        }
+        String[] n = {"ebv", "feh", "logg", "scatter", "zero_point", "g_to_v", "distance", "radius_relation", "mass_relation"};
+        return n[j - Band.COUNT];
+    }
+}

@@ -1,0 +1,201 @@
+package org.starderive.physics;
+
+import java.util.Arrays;
+
+/**
+ * Teff of one star from the colour relations of one {@link Regime}: the inverse-variance mean of every usable
+ * relation, with its first-order error source by source ({@link ErrorSource}). Package private; one instance per
+ * regime and thread, reused per star.
+ *
+ * <p>Weights: w_i = 1 / (σ_rel,i² + (∂T_i/∂X_i)² σ_X,i²). The error of the mean is propagated to first order
+ * through every shared input, not averaged down as if the colours were independent: the gradient of the mean with
+ * respect to each band magnitude (a band appears in several colours), E(B−V), [Fe/H] and log g is accumulated, and
+ * σ²(T̄) = Σ_b (∂T̄/∂m_b)² σ_b² + (∂T̄/∂E)² σ_E² + (∂T̄/∂[Fe/H])² σ_[Fe/H]² + (∂T̄/∂log g)² σ_g² + Σ_i (w_i/W)² σ_rel,i²
+ * + (Σ_i w_i zp_i / W)². Of several forms of one colour (a {@link TeffRelation#group()}) only the first usable is
+ * used. Colours outside a relation's range are not used, but a colour beyond an edge by more than twice its error
+ * bounds Teff (redder than the red edge: cooler than that edge's Teff).
+ */
+final class TeffEstimator {
+    private static final double TEFF_SANE_MIN_K = 2000.0;
+    private static final double TEFF_SANE_MAX_K = 50000.0;
+
+    private final StarState s;
+    private final TeffRelation[] relations;
+    private final int[] relationIndex;
+    private final int[] groupIds;
+    private final boolean allowExtrapolation;
+    private final double[] tEst;
+    private final double[] wEst;
+    private final double[] gradBand = new double[Band.COUNT];
+    private final boolean[] groupUsed;
+
+    // result
+    double mean;
+    /** First-order contributions to Teff per error source. */
+    final double[] c = new double[ErrorSource.COUNT];
+    long mask;
+    int n;
+    double chi2;
+    boolean anyColour;
+    boolean anyOut;
+    boolean extrapolated;
+    boolean usesLogg;
+    double tUpper;
+    double tLower;
+
+    TeffEstimator(StarState s, TeffRelation[] relations, int[] relationIndex, boolean allowExtrapolation) {
+        this.s = s;
+        this.relations = relations;
+        this.relationIndex = relationIndex;
+        this.allowExtrapolation = allowExtrapolation;
+        this.tEst = new double[relations.length];
+        this.wEst = new double[relations.length];
+        this.groupIds = new int[relations.length];
+        this.groupUsed = new boolean[relations.length];
+        for (int k = 0; k < relations.length; k++) {
+            groupIds[k] = k;
+            for (int i = 0; i < k; i++) {
+                if (relations[i].group().equals(relations[k].group())) {
+                    groupIds[k] = groupIds[i];
+                    break;
+                }
+            }
+        }
+    }
+
+    void clear() {
+        mean = chi2 = Double.NaN;
+        Arrays.fill(c, 0);
+        mask = 0;
+        n = 0;
+        anyColour = anyOut = extrapolated = usesLogg = false;
+        tUpper = Double.POSITIVE_INFINITY;
+        tLower = 0;
+    }
+
+    private static double sq(double x) { return x * x; }
+
+    /**
+     * Estimates Teff from the relations of {@code regime} at log g {@code logg} (error {@code sLogg}); {@code offsets}
+     * (null: none) shifts each enabled relation's Teff (a Monte Carlo draw); {@code teffMaxK} caps the temperature a
+     * windowed relation may give (its own window, or the blend zone's upper edge).
+     */
+    void estimate(Regime regime, double logg, double sLogg, double[] offsets, double teffMaxK) {
+        clear();
+        double[] m0 = s.m0;
+        double[] sm = s.sm;
+        double[] rBand = s.rBand;
+        double feh = s.feh;
+        double sumW = 0;
+        double sumWT = 0;
+        double sumWZp = 0;
+        double gEbv = 0;
+        double gFeh = 0;
+        double gLogg = 0;
+        double scatterVar = 0;
+        Arrays.fill(gradBand, 0);
+        Arrays.fill(groupUsed, false);
+        int ji = Band.J.ordinal();
+        int hi = Band.H.ordinal();
+        for (int k = 0; k < relations.length; k++) {
+            TeffRelation r = relations[k];
+            if (r.regime() != regime || alreadyUsed(k)) {
+                continue;
+            }
+            int bi = r.blue().ordinal();
+            int ri = r.red().ordinal();
+            if (Double.isNaN(m0[bi]) || Double.isNaN(m0[ri])) {
+                continue;
+            }
+            double aux = Double.NaN;
+            if (r.aux() == TeffRelation.Aux.JH) {
+                if (Double.isNaN(m0[ji]) || Double.isNaN(m0[hi])) {
+                    continue;
+                }
+                aux = m0[ji] - m0[hi];
+            } else if (r.aux() == TeffRelation.Aux.FEH && !s.fehMeasured) {
+                continue;
+            }
+            anyColour = true;
+            double x = m0[bi] - m0[ri];
+            double sx2 = sm[bi] * sm[bi] + sm[ri] * sm[ri] + sq((rBand[bi] - rBand[ri]) * s.sEbv);
+            boolean in = r.inRange(x, feh);
+            if (!in) {
+                anyOut = true;
+                double margin = 2 * Math.sqrt(sx2);
+                if (x > r.colourMax() + margin) {
+                    tUpper = Math.min(tUpper, r.teff(r.colourMax(), feh, logg, aux));
+                } else if (x < r.colourMin() - margin) {
+                    tLower = Math.max(tLower, r.teff(r.colourMin(), feh, logg, aux));
+                }
+                if (!allowExtrapolation || r.form() == TeffRelation.Form.MANN2015) {
+                    continue; // beyond a Mann turnover the polynomial is never evaluated
+                }
+            }
+            double t = r.teff(x, feh, logg, aux);
+            if (!(t >= r.teffMinK() && t <= Math.max(r.teffMaxK(), teffMaxK))) {
+                continue;
+            }
+            if (offsets != null) {
+                t += offsets[k];
+            }
+            if (!(t >= TEFF_SANE_MIN_K && t <= TEFF_SANE_MAX_K)) {
+                continue;
+            }
+            groupUsed[k] = true;
+            double dx = r.dTeffDColour(x, feh, logg, aux);
+            double sr = r.scatterK(t);
+            double w = 1 / (dx * dx * sx2 + sr * sr);
+            tEst[n] = t;
+            wEst[n] = w;
+            n++;
+            sumW += w;
+            sumWT += w * t;
+            gradBand[bi] += w * dx;
+            gradBand[ri] -= w * dx;
+            gEbv -= w * dx * (rBand[bi] - rBand[ri]);
+            if (r.aux() == TeffRelation.Aux.JH) {
+                double da = r.dTeffDAux(aux);
+                gradBand[ji] += w * da;
+                gradBand[hi] -= w * da;
+                gEbv -= w * da * (rBand[ji] - rBand[hi]);
+            }
+            gFeh += w * r.dTeffDFeh(x, feh, logg);
+            gLogg += w * r.dTeffDLogg(x, feh);
+            scatterVar += w * w * sr * sr;
+            sumWZp += w * r.zeroPointK();
+            mask |= 1L << relationIndex[k];
+            extrapolated |= !in;
+            usesLogg |= r.form() == TeffRelation.Form.GAIA2021;
+        }
+        if (n == 0) {
+            return;
+        }
+        mean = sumWT / sumW;
+        if (s.valuesOnly) {
+            return;
+        }
+        for (int b = 0; b < Band.COUNT; b++) {
+            c[b] = gradBand[b] == 0 ? 0 : gradBand[b] * sm[b] / sumW;
+        }
+        c[ErrorSource.EBV] = gEbv * s.sEbv / sumW;
+        c[ErrorSource.FEH] = gFeh * s.sFeh / sumW;
+        c[ErrorSource.LOGG] = gLogg * sLogg / sumW;
+        c[ErrorSource.SCATTER] = Math.sqrt(scatterVar) / sumW;
+        c[ErrorSource.ZP] = sumWZp / sumW;
+        double x2 = 0;
+        for (int i = 0; i < n; i++) {
+            x2 += wEst[i] * sq(tEst[i] - mean);
+        }
+        chi2 = x2;
+    }
+
+    private boolean alreadyUsed(int k) {
+        for (int i = 0; i < k; i++) {
+            if (groupUsed[i] && groupIds[i] == groupIds[k]) {
+                return true;
+            }
+        }
+        return false;
+    }
+}
