@@ -65,6 +65,9 @@ public final class MonteCarloDeriver {
 
     public int draws() { return draws; }
 
+    /** Switches error sources on and off in both paths (see {@link StarDeriver#errorSources(long)}); for tests. */
+    void errorSources(long mask) { deriver.errorSources(mask); }
+
     /** The per-star generator seed: SplitMix64-style mix of the run seed and the star's key. */
     static long starSeed(long runSeed, long starKey) {
         long z = runSeed * 0x9E3779B97F4A7C15L + starKey;
@@ -119,19 +122,29 @@ public final class MonteCarloDeriver {
             }
             z[ErrorSource.EBV] = g.sample();
             z[ErrorSource.FEH] = g.sample();
-            z[ErrorSource.LOGG] = evolved ? g.sample() : 0;
+            z[ErrorSource.LOGG] = evolved || Double.isNaN(b.loggCgs) ? g.sample() : 0;
             z[ErrorSource.ZP] = g.sample();
             z[ErrorSource.GV] = vFromG ? g.sample() : 0;
             z[ErrorSource.RADIUS_REL] = g.sample();
             z[ErrorSource.MASS_REL] = g.sample();
+            long on = deriver.errorSources();
+            if (on != -1L) {
+                for (int j = 0; j < ErrorSource.COUNT; j++) {
+                    if ((on & (1L << j)) == 0) {
+                        z[j] = 0;
+                    }
+                }
+            }
+            double scatterOn = (on & (1L << ErrorSource.SCATTER)) != 0 ? 1 : 0;
             // each relation's own scatter (independent) and the temperature scales' zero points (one shared z)
             for (int i = 0; i < nRel; i++) {
                 int k = usedRelations[i];
                 TeffRelation r = relations[k];
-                offsets[k] = r.scatterK(b.teffK) * g.sample() + r.zeroPointK() * z[ErrorSource.ZP];
+                offsets[k] = scatterOn * r.scatterK(b.teffK) * g.sample() + r.zeroPointK() * z[ErrorSource.ZP];
             }
             // distance
-            double dist = haveDistribution ? drawDistance(posterior, p, sp, rng, g) : Double.NaN;
+            double dist = !haveDistribution ? Double.NaN
+                    : (on & (1L << ErrorSource.MU)) != 0 ? drawDistance(posterior, p, sp, rng, g) : b.distPc;
             StarResult r = deriver.deriveDraw(in, drawOut, dist, offsets, z, b.lumClass, b.loggCgs);
             add(0, r.distPc);
             add(1, r.teffK);

@@ -133,6 +133,14 @@ public final class StarDeriver {
 
     public DeriveSettings settings() { return settings; }
 
+    /**
+     * Switches error sources on and off (bit j: {@link ErrorSource} j), in the first-order errors and in Monte Carlo
+     * draws alike; all are on by default. For tests that compare the two paths one source at a time.
+     */
+    void errorSources(long mask) { s.sourceMask = mask; }
+
+    long errorSources() { return s.sourceMask; }
+
     /** The enabled relations, in the order used by {@link #deriveDraw} offsets. */
     TeffRelation[] enabledRelations() { return relations; }
 
@@ -216,7 +224,9 @@ public final class StarDeriver {
         } else {
             if (fixedClass && !Double.isNaN(drawLogg)) {
                 logg = drawLogg;
-                sLogg = 0.1;
+                sLogg = 0; // derived from the chain, not an independent source
+            } else {
+                logg += dz(ErrorSource.LOGG, sLogg); // assumed until a distance gives L and R
             }
             estimate(LuminosityClass.MAIN_SEQUENCE, logg, sLogg);
         }
@@ -265,8 +275,10 @@ public final class StarDeriver {
                 continue;
             }
             if (tUsesLogg && Math.abs(g - logg) > 0.005) {
+                // a dwarf's log g now comes from the chain itself: not an independent error source (its feedback on
+                // Teff through the Gaia-band relations is left out of the first-order errors; draws iterate it)
                 logg = g;
-                sLogg = 0.1;
+                sLogg = 0;
                 estimate(LuminosityClass.MAIN_SEQUENCE, logg, sLogg);
                 stale = true;
                 continue;
@@ -507,6 +519,7 @@ public final class StarDeriver {
             v0 = m0[vi];
             cV[vi] = s.sm[vi];
             cV[ErrorSource.EBV] = -s.rBand[vi] * s.sEbv;
+            s.mask(cV);
             return 0;
         }
         v0 = Double.NaN;
@@ -527,6 +540,7 @@ public final class StarDeriver {
         cV[rp] = dc * s.sm[rp];
         cV[ErrorSource.EBV] = (-s.rBand[g] + dc * (s.rBand[bp] - s.rBand[rp])) * s.sEbv;
         cV[ErrorSource.GV] = GaiaToJohnsonRiello2021.SCATTER_MAG;
+        s.mask(cV);
         return V_FROM_G.mask();
     }
 
@@ -540,6 +554,7 @@ public final class StarDeriver {
         cKs[k] = s.sm[k];
         cKs[ErrorSource.EBV] = -s.rBand[k] * s.sEbv;
         cKs[ErrorSource.MU] = Double.isNaN(sMu) ? 0 : -sMu;
+        s.mask(cKs);
     }
 
     /** Evolved stars: giant relations with the log g prior; main-sequence (FGK) ones if none apply; hot blend. */
@@ -683,7 +698,7 @@ public final class StarDeriver {
             if (haveDist) {
                 mbolAbsBc = mbolApp - mu;
                 if (!vo) {
-                    cMbol[ErrorSource.MU] = -sMu;
+                    cMbol[ErrorSource.MU] = s.on(ErrorSource.MU) ? -sMu : 0;
                 }
             }
         }
@@ -704,10 +719,11 @@ public final class StarDeriver {
                 }
                 cLnRM[ErrorSource.FEH] += RadiusMann2015.dLnRdFeh(fehForm) * s.sFeh;
                 cLnRM[ErrorSource.RADIUS_REL] = frac;
+                s.mask(cLnRM);
                 for (int j = 0; j < NSRC; j++) {
                     cMbolM[j] = -2.5 / LN10 * (2 * cLnRM[j] + 4 * cT[j] / t);
                     // ln θ = ln R − ln d, and ln d grows with μ as ln10/5
-                    workM[j] = cLnRM[j] - (j == ErrorSource.MU ? LN10 / 5 * sMu : 0);
+                    workM[j] = cLnRM[j] - (j == ErrorSource.MU && s.on(j) ? LN10 / 5 * sMu : 0);
                 }
             }
             wRadiusM = Double.isNaN(mbolAbsBc) ? 1 : wM;
@@ -797,7 +813,7 @@ public final class StarDeriver {
                     e = ekerLnScatter;
                     mm = mannFrac;
                 }
-                double lnMj = (1 - w) * e + w * mm;
+                double lnMj = s.on(j) ? (1 - w) * e + w * mm : 0;
                 varLnM += lnMj * lnMj;
                 varLnRho += sq(lnMj - 3 * cLnR[j]);
                 varLnG += sq(lnMj - 2 * cLnR[j]);

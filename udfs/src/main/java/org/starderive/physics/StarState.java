@@ -16,6 +16,23 @@ final class StarState {
     double sFeh;
     /** Whether [Fe/H] was measured (then the relations' [Fe/H] forms are used). */
     boolean fehMeasured;
+    /** Bit j set: error source j ({@link ErrorSource}) is on, in both uncertainty paths (tests switch sources off). */
+    long sourceMask = -1L;
     /** Monte Carlo draw: skip first-order errors. */
     boolean valuesOnly;
+
+    boolean on(int source) {
+        return (sourceMask & (1L << source)) != 0;
+    }
+
+    /** Zeroes the entries of the sources that are off. */
+    void mask(double[] contributions) {
+        if (sourceMask != -1L) {
+            for (int j = 0; j < contributions.length; j++) {
+                if (!on(j)) {
+                    contributions[j] = 0;
+                }
+            }
+        }
+    }
 }

@@ -183,6 +183,7 @@ final class TeffEstimator {
         c[ErrorSource.LOGG] = gLogg * sLogg / sumW;
         c[ErrorSource.SCATTER] = Math.sqrt(scatterVar) / sumW;
         c[ErrorSource.ZP] = sumWZp / sumW;
+        s.mask(c);
         double x2 = 0;
         for (int i = 0; i < n; i++) {
             x2 += wEst[i] * sq(tEst[i] - mean);
