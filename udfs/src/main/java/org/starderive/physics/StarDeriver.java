@@ -813,7 +813,8 @@ public final class StarDeriver {
                     e = ekerLnScatter;
                     mm = mannFrac;
                 }
-                double lnMj = s.on(j) ? (1 - w) * e + w * mm : 0;
+                // each term only where its relation carries weight (Eker's scatter is NaN below its mass range)
+                double lnMj = s.on(j) ? (w < 1 ? (1 - w) * e : 0) + (w > 0 ? w * mm : 0) : 0;
                 varLnM += lnMj * lnMj;
                 varLnRho += sq(lnMj - 3 * cLnR[j]);
                 varLnG += sq(lnMj - 2 * cLnR[j]);

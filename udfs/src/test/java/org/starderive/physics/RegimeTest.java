@@ -81,6 +81,26 @@ class RegimeTest {
     }
 
     @Test
+    void proximaCentauriBelowTheEkerMassRangeGetsAMannMassWithItsError() {
+        // V 11.13, 2MASS J 5.357, H 4.835, Ks 4.384, parallax 768.07 +- 0.05 mas (Gaia DR3): all from memory.
+        // M_Ks = 8.81: below the Eker et al. 2018 mass range (0.179 M_sun), so the mass is Mann et al. 2019's alone
+        StarInput in = new StarInput().parallax(768.07, 0.05)
+                .magnitude(Band.V, 11.13, 0.02).magnitude(Band.J, 5.357, 0.023).magnitude(Band.H, 4.835, 0.057)
+                .magnitude(Band.KS, 4.384, 0.033).ebv(0, 0);
+        StarResult r = deriver.derive(in, new StarResult());
+        assertEquals(Regime.M_DWARF, r.regime);
+        // interferometric R = 0.1542 +- 0.0045 R_sun (Boyajian et al. 2012, ApJ 757, 112; from memory). Their Teff,
+        // about 3050 K (from memory), is not checked: at V-J 5.8 the Mann et al. 2015 relations give about 2850 K,
+        // near their cool end; the radius and mass do not depend on it
+        assertEquals(0.1542, r.radiusRsun, 2 * Math.hypot(r.radiusErrRsun, 0.0045), "R " + r.radiusRsun);
+        assertTrue(r.teffK > 2700 && r.teffK < 3200, "Teff " + r.teffK);
+        // mass about 0.12 M_sun (from memory); its error is finite and carries the 2.0 % scatter of Mann et al. 2019
+        assertEquals(0.122, r.massMsun, 2 * r.massErrMsun + 0.005, "M " + r.massMsun + " +- " + r.massErrMsun);
+        assertTrue(r.massErrMsun / r.massMsun >= 0.020 && r.massErrMsun / r.massMsun < 0.05, "M error " + r.massErrMsun);
+        assertTrue(Double.isFinite(r.densityErrKgM3) && Double.isFinite(r.loggErrCgs), "density and log g errors");
+    }
+
+    @Test
     void barnardsStarMatchesItsInterferometricRadiusAndTemperature() {
         StarResult r = deriver.derive(barnardsStar(), new StarResult());
         // interferometric R = 0.1867 +- 0.0012 R_sun, Teff = 3222 +- 10 K (Boyajian et al. 2012, ApJ 757, 112; from memory)
