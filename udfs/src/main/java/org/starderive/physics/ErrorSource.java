@@ -23,6 +23,8 @@ package org.starderive.physics;
  * MU            the distance (inverse parallax or posterior)         the distance modulus (a draw samples a distance)
  * RADIUS_REL    the M-dwarf radius relation's scatter                ln R from M_Ks (Mann et al. 2015)
  * MASS_REL      the mass relation's scatter                          ln M (Mann et al. 2019; Eker et al. 2018)
+ * BLEND         where two regimes' relations are blended (K7–M0,      the blended Teff, M_bol and ln M: the spread of the
+ *               late A–early F): their disagreement, one z             mixture, √(w₁w₂) × (second − first estimate)
  * </pre>
  */
 public final class ErrorSource {
@@ -38,15 +40,16 @@ public final class ErrorSource {
     public static final int MU = Band.COUNT + 6;
     public static final int RADIUS_REL = Band.COUNT + 7;
     public static final int MASS_REL = Band.COUNT + 8;
+    public static final int BLEND = Band.COUNT + 9;
     /** Number of sources. */
-    public static final int COUNT = Band.COUNT + 9;
+    public static final int COUNT = Band.COUNT + 10;
 
     /** A short name of source {@code j}, for messages and tests. */
     public static String name(int j) {
         if (j < Band.COUNT) {
             return "mag_" + Band.values()[j].suffix();
         }
-        String[] n = {"ebv", "feh", "logg", "scatter", "zero_point", "g_to_v", "distance", "radius_relation", "mass_relation"};
+        String[] n = {"ebv", "feh", "logg", "scatter", "zero_point", "g_to_v", "distance", "radius_relation", "mass_relation", "blend"};
         return n[j - Band.COUNT];
     }
 }

@@ -127,6 +127,7 @@ public final class MonteCarloDeriver {
             z[ErrorSource.GV] = vFromG ? g.sample() : 0;
             z[ErrorSource.RADIUS_REL] = g.sample();
             z[ErrorSource.MASS_REL] = g.sample();
+            z[ErrorSource.BLEND] = g.sample();
             long on = deriver.errorSources();
             if (on != -1L) {
                 for (int j = 0; j < ErrorSource.COUNT; j++) {

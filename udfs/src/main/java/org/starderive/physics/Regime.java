@@ -72,4 +72,14 @@ public enum Regime {
         }
         return tFlowerK >= HOT_BLEND_HI_K ? 1.0 : (tFlowerK - HOT_BLEND_LO_K) / (HOT_BLEND_HI_K - HOT_BLEND_LO_K);
     }
+
+    /** d(M-dwarf weight)/dTeff per K: non-zero only inside the blend (first-order errors carry the moving weight). */
+    public static double dMDwarfWeight(double tMannK) {
+        return tMannK > M_BLEND_LO_K && tMannK < M_BLEND_HI_K ? -1.0 / (M_BLEND_HI_K - M_BLEND_LO_K) : 0.0;
+    }
+
+    /** d(hot weight)/dTeff per K: non-zero only inside the blend. */
+    public static double dHotWeight(double tFlowerK) {
+        return tFlowerK > HOT_BLEND_LO_K && tFlowerK < HOT_BLEND_HI_K ? 1.0 / (HOT_BLEND_HI_K - HOT_BLEND_LO_K) : 0.0;
+    }
 }

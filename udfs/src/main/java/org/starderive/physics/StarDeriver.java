@@ -85,6 +85,8 @@ public final class StarDeriver {
     private boolean tUsesLogg;
     private boolean tBoundBroken;
     private double wM;
+    /** Contributions of each source to the M-dwarf weight (its derivative times the M estimate's contribution). */
+    private final double[] dwM = new double[ErrorSource.COUNT];
     private double wHot;
     private Regime tRegime;
     /** First-order contributions of each error source to Teff, V₀, absolute M_bol, ln R, ln θ and M_Ks. */
@@ -175,6 +177,20 @@ public final class StarDeriver {
     }
 
     /** z × σ of source {@code j} in a draw; 0 outside draws. */
+    /**
+     * The blend spreads (Teff, M_bol, ln M) of the star's nominal derivation: a Monte Carlo draw scales the nominal
+     * spread by its z (a spread recomputed inside the draw would make the blend term quadratic in z).
+     */
+    private final double[] nominalSpread = new double[3];
+
+    private double blendSpread(int k, double computed) {
+        if (drawZ == null) {
+            nominalSpread[k] = computed;
+            return computed;
+        }
+        return nominalSpread[k];
+    }
+
     private double dz(int j, double sigma) {
         return drawZ == null ? 0.0 : drawZ[j] * sigma;
     }
@@ -643,6 +659,12 @@ public final class StarDeriver {
         wM = wm;
         wHot = wh;
         tMean = (wf > 0 ? wf * f.mean : 0) + (wm > 0 ? wm * m.mean : 0) + (wh > 0 ? wh * h.mean : 0);
+        // two regimes blended: their disagreement is an error source (the spread of the two-component mixture)
+        double spreadT = wm > 0 && wf > 0 ? Math.sqrt(wf * wm) * (m.mean - f.mean)
+                : wh > 0 && wf > 0 ? Math.sqrt(wf * wh) * (h.mean - f.mean)
+                : wm > 0 && wh > 0 ? Math.sqrt(wm * wh) * (h.mean - m.mean) : 0;
+        spreadT = blendSpread(0, spreadT);
+        tMean += dz(ErrorSource.BLEND, spreadT);
         tMask = (wf > 0 ? f.mask : 0) | (wm > 0 ? m.mask : 0) | (wh > 0 ? h.mask : 0);
         tExtrapolated = (wf > 0 && f.extrapolated) || (wm > 0 && m.extrapolated) || (wh > 0 && h.extrapolated);
         TeffEstimator dom = wm >= wf && wm >= wh ? m : wh >= wf ? h : f;
@@ -654,9 +676,15 @@ public final class StarDeriver {
             tBoundBroken = false;
             return;
         }
+        // the weights move with the estimates they are judged by: d(blend) = Σ w dT + (T_other − T_fgk) dw
+        double dWm = wf > 0 && wm > 0 ? Regime.dMDwarfWeight(m.mean) : 0;
+        double dWh = wf > 0 && wh > 0 ? Regime.dHotWeight(h.mean) : 0;
         for (int j = 0; j < NSRC; j++) {
-            cT[j] = (wf > 0 ? wf * f.c[j] : 0) + (wm > 0 ? wm * m.c[j] : 0) + (wh > 0 ? wh * h.c[j] : 0);
+            dwM[j] = dWm * m.c[j];
+            cT[j] = (wf > 0 ? wf * f.c[j] : 0) + (wm > 0 ? wm * m.c[j] : 0) + (wh > 0 ? wh * h.c[j] : 0)
+                    + (dWm != 0 ? dWm * (m.mean - f.mean) * m.c[j] : 0) + (dWh != 0 ? dWh * (h.mean - f.mean) * h.c[j] : 0);
         }
+        cT[ErrorSource.BLEND] = s.on(ErrorSource.BLEND) ? spreadT : 0;
         tErr = norm(cT);
         tBoundBroken = tMean > upper + 2 * tErr || tMean < lower - 2 * tErr;
     }
@@ -747,12 +775,24 @@ public final class StarDeriver {
         if (Double.isNaN(mbolAbs)) {
             return;
         }
+        // both routes blended: their disagreement enters as the blend source (same z as the blended Teff)
+        double spreadMbol = w > 0 && w < 1 ? Math.sqrt(w * (1 - w)) * (mbolAbsM - mbolAbsBc) : 0;
+        spreadMbol = blendSpread(1, spreadMbol);
+        mbolAbs += dz(ErrorSource.BLEND, spreadMbol);
         double sMbol = Double.NaN;
         if (!vo) {
             for (int j = 0; j < NSRC; j++) {
                 double bcPart = w < 1 ? (1 - w) * cMbol[j] : 0;
                 double mPart = w > 0 ? w * cMbolM[j] : 0;
                 work[j] = bcPart + mPart;
+            }
+            if (s.on(ErrorSource.BLEND)) {
+                work[ErrorSource.BLEND] += spreadMbol;
+            }
+            if (w > 0 && w < 1) {
+                for (int j = 0; j < NSRC; j++) {
+                    work[j] += dwM[j] * (mbolAbsM - mbolAbsBc);
+                }
             }
             sMbol = norm(work);
             for (int j = 0; j < NSRC; j++) {
@@ -794,6 +834,10 @@ public final class StarDeriver {
         double mannFrac = MassMann2019.scatterFrac(fehForm);
         double lnM = (w < 1 ? (1 - w) * (logME * LN10 + dz(ErrorSource.MASS_REL, ekerLnScatter)) : 0)
                 + (w > 0 ? w * (logMM * LN10 + dz(ErrorSource.MASS_REL, mannFrac)) : 0);
+        // both mass relations blended: their disagreement enters as the blend source
+        double spreadLnM = w > 0 && w < 1 ? Math.sqrt(w * (1 - w)) * LN10 * (logMM - logME) : 0;
+        spreadLnM = blendSpread(2, spreadLnM);
+        lnM += dz(ErrorSource.BLEND, spreadLnM);
         double logM = lnM / LN10;
         double m = Math.exp(lnM);
         double r = out.radiusRsun;
@@ -814,7 +858,9 @@ public final class StarDeriver {
                     mm = mannFrac;
                 }
                 // each term only where its relation carries weight (Eker's scatter is NaN below its mass range)
-                double lnMj = s.on(j) ? (w < 1 ? (1 - w) * e : 0) + (w > 0 ? w * mm : 0) : 0;
+                double lnMj = s.on(j) ? (w < 1 ? (1 - w) * e : 0) + (w > 0 ? w * mm : 0)
+                        + (j == ErrorSource.BLEND ? spreadLnM : 0)
+                        + (w > 0 && w < 1 ? dwM[j] * LN10 * (logMM - logME) : 0) : 0;
                 varLnM += lnMj * lnMj;
                 varLnRho += sq(lnMj - 3 * cLnR[j]);
                 varLnG += sq(lnMj - 2 * cLnR[j]);
