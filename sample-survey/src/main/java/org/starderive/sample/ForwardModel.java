@@ -3,16 +3,9 @@ package org.starderive.sample;
 import org.apache.commons.rng.UniformRandomProvider;
 import org.apache.commons.rng.sampling.distribution.ZigguratSampler;
 import org.apache.commons.rng.simple.RandomSource;
+import static org.starderive.sample.IndependentRelations.*;
+
 import org.starderive.physics.Band;
-import org.starderive.physics.BolometricCorrectionFlower1996;
-import org.starderive.physics.CardelliClaytonMathis1989;
-import org.starderive.physics.DerivedConstants;
-import org.starderive.physics.GaiaBandExtinction;
-import org.starderive.physics.GaiaToJohnsonRiello2021;
-import org.starderive.physics.Iau2015;
-import org.starderive.physics.MassLuminosityEker2018;
-import org.starderive.physics.TeffRelation;
-import org.starderive.physics.TeffRelations;
 
 /**
  * One synthetic star of the fictional "Kestrel" survey, drawn from a random stream that depends only on
@@ -20,19 +13,30 @@ import org.starderive.physics.TeffRelations;
  * <ul>
  *   <li><b>Population.</b> 86 % main sequence, 4 % subgiants, 5 % red clump, 5 % red-giant branch (our choice).
  *       Main-sequence masses from the Kroupa 2001 (MNRAS 322, 231) initial mass function, dN/dM ∝ M^−1.3 for
- *       0.18–0.5 M⊙ and M^−2.3 for 0.5–8 M⊙; L from the Eker et al. 2018 mass–luminosity relation with 0.05 dex
- *       of age spread; R from Eker et al. 2018 Table 5 (R = 0.438M² + 0.479M + 0.075 for M ≤ 1.5) or Teff from
- *       their log Teff(M) for M &gt; 1.5. Evolved stars from simple loci of our own (below).</li>
+ *       0.10–0.5 M⊙ and M^−2.3 for 0.5–20 M⊙; L from the Eker et al. 2018 mass–luminosity relation with 0.05 dex
+ *       of age spread (its lowest segment extrapolated below 0.179 M⊙: our choice); R from Eker et al. 2018 Table 5
+ *       (R = 0.438M² + 0.479M + 0.075 for M ≤ 1.5) or Teff from their log Teff(M) for M &gt; 1.5.
+ *       Below 0.68 M⊙ (about 4250 K, so everywhere the job may use it) the radius is Mann et al. 2015's R(M_Ks)
+ *       (off by its 2.89 % scatter) at the absolute Ks of the Mann et al. 2019 mass relation run backwards (mass
+ *       drawn off by its 2 % scatter); from 0.68 to 0.82 M⊙ ln R goes linearly from that radius to Eker's (the two
+ *       are 7–15 % apart at 0.6–0.75 M⊙: our choice, so the sequence has no gap); Teff from L and R. Main-sequence stars cooler than 4200 K are M dwarfs,
+ *       their photometry built from absolute Ks up. Evolved stars from simple loci of our own (below).</li>
  *   <li><b>Positions.</b> Exponential disc: scale height 300 pc, scale length 2.6 kpc (Jurić et al. 2008, ApJ 673,
  *       864, thin disc, from memory), Sun at R = 8.2 kpc (Bland-Hawthorn &amp; Gerhard 2016, from memory), z = 0;
  *       directions uniform on the sky; distances drawn ∝ d² ρ out to where the star reaches G = 20.5 (or 10 kpc).</li>
  *   <li><b>Extinction.</b> A_V grows by 1 mag/kpc in the plane through a dust layer of scale height 125 pc
  *       (common practice); E(B−V) = A_V / 3.1; bands reddened with the same laws the job removes.</li>
- *   <li><b>Photometry.</b> V from the bolometric magnitude and BC_V on the Flower/Torres scale; colours from the
- *       published colour–Teff relations run backwards, each perturbed by that relation's own scatter (so real
- *       stars scatter about the relation); dwarfs and subgiants with Casagrande et al. 2010, giants with
- *       González Hernández &amp; Bonifacio 2009 where it has the colour; BP−RP with Casagrande et al. 2021 at the
- *       true log g; G from V (Riello et al. 2021); BP − G = 0.4 (BP−RP) (our approximation).</li>
+ *   <li><b>Photometry.</b> V from the bolometric magnitude and BC_V on the Flower/Torres scale (M_bol⊙ computed
+ *       from V⊙ = −26.76 and BC_V(5772 K), not typed); colours from the published colour–Teff relations run
+ *       backwards, each at Teff offset by that relation's own scatter (so real stars scatter about the relation):
+ *       dwarfs and subgiants with Casagrande et al. 2010 (B−V from Flower 1996/Torres 2010 above 7500 K, mixed
+ *       between 7000 and 7500 K), giants with González Hernández &amp; Bonifacio 2009 where it has the colour; BP−RP
+ *       with Casagrande et al. 2021 at the true log g; M dwarfs from absolute Ks up with the Mann et al. 2015
+ *       relations ({@link #mDwarfMagnitudes}); G from V (Riello et al. 2021); BP − G = 0.4 (BP−RP) (our
+ *       approximation). Beyond a relation's colour range its colour is continued linearly.</li>
+ *   <li><b>Truth regime.</b> Each star's calibration regime by its truth (hot above 7250 K, M dwarf below 4200 K on
+ *       the main sequence, the centres of the job's blends), {@code none} where no relation covers it (M dwarfs
+ *       below 2700 K or fainter than M_Ks 9.8).</li>
  *   <li><b>Errors.</b> Optical σ = 0.005 + 0.02·10^(0.4(m−19)); near-infrared σ = 0.02 + 0.05·10^(0.4(m−15));
  *       Gaia-like σ = 0.001 + 0.01·10^(0.4(m−19)); parallax σ = √(0.02² + (0.5·10^(0.4(G−20)))²) mas and a
  *       zero point of −0.02 mas. Bands fainter than their limit (optical 22, near-infrared 16.5, G 21, BP/RP 20.8)
@@ -42,15 +46,18 @@ import org.starderive.physics.TeffRelations;
  *       stars brighter than V = 7 saturated (optical magnitudes 0.4 mag too faint, error 0.2).</li>
  * </ul>
  * Because the photometry is made with the same published relations the job uses, recovery checks the inference,
- * flags and uncertainties, not the calibrations themselves (those are checked against published tables).
+ * flags and uncertainties, not the calibrations themselves (those are checked against published tables). The
+ * relations and constants are typed a second time in {@link IndependentRelations} and no physics code is called,
+ * so a mistyped coefficient or constant in the job shows up as a recovery bias. What stays circular: the choice of
+ * relations, the list of bands, and the scatters the job states (which the survey draws with).
  */
 public final class ForwardModel {
     public static final double FRAC_MS = 0.86;
     public static final double FRAC_SUBGIANT = 0.04;
     public static final double FRAC_CLUMP = 0.05;
-    public static final double KROUPA_M_MIN = 0.18;
+    public static final double KROUPA_M_MIN = 0.10;
     public static final double KROUPA_M_BREAK = 0.5;
-    public static final double KROUPA_M_MAX = 8.0;
+    public static final double KROUPA_M_MAX = 20.0;
     public static final double KROUPA_ALPHA_LOW = 1.3;
     public static final double KROUPA_ALPHA_HIGH = 2.3;
     public static final double DISC_SCALE_HEIGHT_PC = 300;
@@ -68,19 +75,21 @@ public final class ForwardModel {
     public static final double SATURATION_V = 7.0;
     public static final int TILES = 12;
 
+    /** Below this mass a main-sequence star's radius is Mann et al. 2015's; above {@link #M_BLEND_HI_MSUN} Eker et al. 2018's. */
+    public static final double M_BLEND_LO_MSUN = 0.68;
+    public static final double M_BLEND_HI_MSUN = 0.82;
+    /** Main-sequence stars cooler than this get their photometry from absolute Ks up (Mann relations): the centre of the job's K7–M0 blend. */
+    public static final double M_ROUTE_MAX_K = 4200;
+    /** Main-sequence stars hotter than this are hot stars in the truth table: the centre of the job's late A–early F blend. */
+    public static final double HOT_ROUTE_MIN_K = 7250;
+    /** Mann et al. 2015 colour relations hold from 2700 K (their Table 2 range). */
+    public static final double MANN_TEFF_MIN_K = 2700;
+    /** Mann et al. 2015 radius relation holds to M_Ks 9.8 (their Table 1). */
+    public static final double MANN_RADIUS_MKS_MAX = 9.8;
+    /** Spread of main-sequence log L about the Eker et al. 2018 relation (age and composition; our choice, the job's). */
+    public static final double LOGL_SPREAD_DEX = 0.05;
+
     private static final double RV = 3.1;
-    private static final TeffRelation C10_BV = TeffRelations.byId("C10/B-V");
-    private static final TeffRelation C10_VR = TeffRelations.byId("C10/V-Rc");
-    private static final TeffRelation C10_VI = TeffRelations.byId("C10/V-Ic");
-    private static final TeffRelation C10_VJ = TeffRelations.byId("C10/V-J");
-    private static final TeffRelation C10_VH = TeffRelations.byId("C10/V-H");
-    private static final TeffRelation C10_VK = TeffRelations.byId("C10/V-Ks");
-    private static final TeffRelation G09_BV = TeffRelations.byId("GHB09/B-V");
-    private static final TeffRelation G09_VJ = TeffRelations.byId("GHB09/V-J");
-    private static final TeffRelation G09_VH = TeffRelations.byId("GHB09/V-H");
-    private static final TeffRelation G09_VK = TeffRelations.byId("GHB09/V-Ks");
-    private static final TeffRelation C21_BPRP_DWARF = TeffRelations.byId("C21/BP-RP/dwarf");
-    private static final TeffRelation C21_BPRP_GIANT = TeffRelations.byId("C21/BP-RP/giant");
 
     /** Evolutionary class of a synthetic star. */
     public enum Kind { MS, SUBGIANT, RED_CLUMP, RGB }
@@ -101,6 +110,8 @@ public final class ForwardModel {
         public double distPc;
         public double parallaxTrueMas;
         public double ebvTrue;
+        /** The calibration regime the truth falls in (hot, fgk_dwarf, giant, m_dwarf), or none where no relation covers it. */
+        public String regime;
         public String defect;
         // observation (NaN = missing; sentinel and NaN defects are in the values themselves)
         public double parallaxMas;
@@ -143,12 +154,13 @@ public final class ForwardModel {
         return Math.pow(lo + u2 * (hi - lo), 1 / a2);
     }
 
-    private static double bandOverAv(Band b) {
-        return CardelliClaytonMathis1989.bandOverAv(b, RV);
-    }
+    /** A_band / A_V, A_V being the extinction in our V band (0.545 µm): the law normalised there. */
+    private static final double[] OPT_AV = {ccmOverV(LAMBDA_B), 1.0, ccmOverV(LAMBDA_RC),
+            ccmOverV(LAMBDA_IC), ccmOverV(LAMBDA_J), ccmOverV(LAMBDA_H), ccmOverV(LAMBDA_KS)};
 
-    private static final double[] OPT_AV = {bandOverAv(Band.B), bandOverAv(Band.V), bandOverAv(Band.RC), bandOverAv(Band.IC),
-            bandOverAv(Band.J), bandOverAv(Band.H), bandOverAv(Band.KS)};
+    private static double ccmOverV(double lambdaUm) {
+        return ccm(lambdaUm, RV) / ccm(LAMBDA_V, RV);
+    }
 
     /** Fills {@code s} with star {@code id}. */
     public Star generate(long id, Star s) {
@@ -163,65 +175,106 @@ public final class ForwardModel {
         double teff;
         double lum;
         double mass;
+        double radius;
+        double mKs = Double.NaN; // absolute Ks of an M dwarf, from its mass (Mann et al. 2019 run backwards)
         if (u < FRAC_MS) {
             s.kind = Kind.MS;
             mass = kroupaMass(rng.nextDouble(), rng.nextDouble());
-            double logL = MassLuminosityEker2018.logLuminosity(mass) + gauss(rng, g, 0, 0.05);
-            lum = Math.pow(10, logL);
+            lum = Math.pow(10, ekerLogL(mass) + LOGL_SPREAD_DEX * g.sample());
             if (mass <= 1.5) {
-                double r = 0.438 * mass * mass + 0.479 * mass + 0.075;
-                teff = Iau2015.TEFF_SUN_K * Math.pow(lum / (r * r), 0.25);
+                radius = ekerRadius(mass);
             } else {
-                double lm = Math.log10(mass);
-                teff = Math.pow(10, -0.170 * lm * lm + 0.888 * lm + 3.671);
+                radius = Double.NaN;
+            }
+            // low masses: absolute Ks from the Mann et al. 2019 mass relation run backwards (mass drawn off by the
+            // relation's scatter) and Mann et al. 2015's R(M_Ks) (off by its scatter); between M_BLEND_LO_MSUN and
+            // M_BLEND_HI_MSUN ln R goes linearly in mass from Mann's radius to Eker's, which are 7-15 % apart there
+            double uR = Math.max(0, Math.min(1, (M_BLEND_HI_MSUN - mass) / (M_BLEND_HI_MSUN - M_BLEND_LO_MSUN)));
+            double zMass = g.sample();
+            double zRadius = g.sample();
+            if (uR > 0) {
+                double mKsStar = mannMksOfMass(mass * (1 + M19_MASS_SCATTER * zMass));
+                double rStar = mannRadius(mKsStar) * (1 + M15_RADIUS_SCATTER * zRadius);
+                if (!Double.isNaN(mKsStar) && rStar > 0) {
+                    mKs = mKsStar;
+                    radius = uR == 1 ? rStar : Math.exp(uR * Math.log(rStar) + (1 - uR) * Math.log(radius));
+                }
+            }
+            if (mass <= 1.5) {
+                teff = TEFF_SUN_K * Math.pow(lum / (radius * radius), 0.25);
+            } else {
+                teff = ekerTeff(mass);
+                radius = Math.sqrt(lum) * Math.pow(TEFF_SUN_K / teff, 2);
+            }
+            if (!(teff < M_ROUTE_MAX_K)) {
+                mKs = Double.NaN; // photometry from V down (FGK relations)
             }
         } else if (u < FRAC_MS + FRAC_SUBGIANT) {
             s.kind = Kind.SUBGIANT;
             mass = 1.0 + 0.6 * rng.nextDouble();
             teff = 5000 + 1200 * rng.nextDouble();
-            double r = 1.7 + 1.8 * rng.nextDouble();
-            lum = r * r * Math.pow(teff / Iau2015.TEFF_SUN_K, 4);
+            radius = 1.7 + 1.8 * rng.nextDouble();
+            lum = radius * radius * Math.pow(teff / TEFF_SUN_K, 4);
         } else if (u < FRAC_MS + FRAC_SUBGIANT + FRAC_CLUMP) {
             s.kind = Kind.RED_CLUMP;
             mass = 1.0 + rng.nextDouble();
             teff = gauss(rng, g, 4750, 100);
             lum = Math.pow(10, gauss(rng, g, 1.7, 0.08));
+            radius = Math.sqrt(lum) * Math.pow(TEFF_SUN_K / teff, 2);
         } else {
             s.kind = Kind.RGB;
             mass = 0.9 + 0.9 * rng.nextDouble();
             double logL = 0.8 + 1.8 * rng.nextDouble();
             lum = Math.pow(10, logL);
             teff = 4900 - 350 * (logL - 0.8) + gauss(rng, g, 0, 60);
+            radius = Math.sqrt(lum) * Math.pow(TEFF_SUN_K / teff, 2);
         }
-        double radius = Math.sqrt(lum) * Math.pow(Iau2015.TEFF_SUN_K / teff, 2);
         s.massMsun = mass;
         s.teffK = teff;
         s.lumLsun = lum;
         s.radiusRsun = radius;
-        s.loggCgs = DerivedConstants.LOGG_SUN_CGS + Math.log10(mass) - 2 * Math.log10(radius);
+        s.loggCgs = LOGG_SUN_CGS + Math.log10(mass) - 2 * Math.log10(radius);
         s.feh = Math.max(-2.0, Math.min(0.5, gauss(rng, g, -0.1, 0.25)));
 
         // --- intrinsic colours, each relation's scatter drawn independently
-        boolean giant = s.kind == Kind.RED_CLUMP || s.kind == Kind.RGB;
-        double mbol = BolometricCorrectionFlower1996.MBOL_SUN - 2.5 * Math.log10(lum);
-        double mv = mbol - BolometricCorrectionFlower1996.bcV(teff);
         double feh = s.feh;
         double logg = s.loggCgs;
-        double bv = colour(giant ? G09_BV : C10_BV, teff, feh, logg, rng, g);
-        double vr = colour(C10_VR, teff, feh, logg, rng, g);
-        double vi = colour(C10_VI, teff, feh, logg, rng, g);
-        double vj = colour(giant ? G09_VJ : C10_VJ, teff, feh, logg, rng, g);
-        double vh = colour(giant ? G09_VH : C10_VH, teff, feh, logg, rng, g);
-        double vk = colour(giant ? G09_VK : C10_VK, teff, feh, logg, rng, g);
-        double bprp = colour(giant ? C21_BPRP_GIANT : C21_BPRP_DWARF, teff, feh, logg, rng, g);
-        absMag[Band.V.ordinal()] = mv;
-        absMag[Band.B.ordinal()] = mv + bv;
-        absMag[Band.RC.ordinal()] = mv - vr;
-        absMag[Band.IC.ordinal()] = mv - vi;
-        absMag[Band.J.ordinal()] = mv - vj;
-        absMag[Band.H.ordinal()] = mv - vh;
-        absMag[Band.KS.ordinal()] = mv - vk;
-        double mg = mv + GaiaToJohnsonRiello2021.gMinusV(bprp);
+        boolean giant = s.kind == Kind.RED_CLUMP || s.kind == Kind.RGB;
+        double bprp;
+        if (!Double.isNaN(mKs)) {
+            s.regime = teff >= MANN_TEFF_MIN_K && mKs <= MANN_RADIUS_MKS_MAX ? "m_dwarf" : "none";
+            mDwarfMagnitudes(teff, feh, mKs, rng, g);
+            bprp = lastBpRp;
+        } else {
+            if (giant) {
+                s.regime = "giant";
+            } else if (teff > HOT_ROUTE_MIN_K) {
+                s.regime = teff <= flowerTeff(-0.40) ? "hot" : "none";
+            } else {
+                s.regime = "fgk_dwarf";
+            }
+            double mbol = MBOL_SUN_MAG - 2.5 * Math.log10(lum);
+            double mv = mbol - bcV(teff);
+            double bv = giant ? theta(GHB_BV, GHB_BV_SIG, 0.3, 1.4, teff, feh, rng, g) : dwarfBv(teff, feh, rng, g);
+            double vr = theta(C10_VR, C10_VR_SIG, 0.24, 0.80, teff, feh, rng, g);
+            double vi = theta(C10_VI, C10_VI_SIG, 0.46, 1.47, teff, feh, rng, g);
+            double vj = giant ? theta(GHB_VJ, GHB_VJ_SIG, 1.0, 2.4, teff, feh, rng, g)
+                    : theta(C10_VJ, C10_VJ_SIG, 0.61, 2.44, teff, feh, rng, g);
+            double vh = giant ? theta(GHB_VH, GHB_VH_SIG, 0.8, 3.1, teff, feh, rng, g)
+                    : theta(C10_VH, C10_VH_SIG, 0.67, 3.01, teff, feh, rng, g);
+            double vk = giant ? theta(GHB_VK, GHB_VK_SIG, 1.1, 3.4, teff, feh, rng, g)
+                    : theta(C10_VK, C10_VK_SIG, 0.78, 3.15, teff, feh, rng, g);
+            double tb = teff + C21_BPRP_SIG * g.sample();
+            bprp = ColourInversion.colour(x -> c21BpRpTeff(x, feh, logg), 0.20, giant ? 2.55 : 2.00, tb);
+            absMag[Band.V.ordinal()] = mv;
+            absMag[Band.B.ordinal()] = mv + bv;
+            absMag[Band.RC.ordinal()] = mv - vr;
+            absMag[Band.IC.ordinal()] = mv - vi;
+            absMag[Band.J.ordinal()] = mv - vj;
+            absMag[Band.H.ordinal()] = mv - vh;
+            absMag[Band.KS.ordinal()] = mv - vk;
+        }
+        double mg = absMag[Band.V.ordinal()] + gMinusV(bprp);
         absMag[Band.G.ordinal()] = mg;
         absMag[Band.BP.ordinal()] = mg + 0.4 * bprp;
         absMag[Band.RP.ordinal()] = mg - 0.6 * bprp;
@@ -268,9 +321,9 @@ public final class ForwardModel {
             s.mag[opt[k].ordinal()] = absMag[opt[k].ordinal()] + mu + av * OPT_AV[k];
         }
         double c0 = Double.isNaN(bprp) ? 1.0 : bprp;
-        s.mag[Band.G.ordinal()] = absMag[Band.G.ordinal()] + mu + GaiaBandExtinction.rG(c0) * ebv;
-        s.mag[Band.BP.ordinal()] = absMag[Band.BP.ordinal()] + mu + GaiaBandExtinction.rBp(c0) * ebv;
-        s.mag[Band.RP.ordinal()] = absMag[Band.RP.ordinal()] + mu + GaiaBandExtinction.rRp(c0) * ebv;
+        s.mag[Band.G.ordinal()] = absMag[Band.G.ordinal()] + mu + rG(c0) * ebv;
+        s.mag[Band.BP.ordinal()] = absMag[Band.BP.ordinal()] + mu + rBp(c0) * ebv;
+        s.mag[Band.RP.ordinal()] = absMag[Band.RP.ordinal()] + mu + rRp(c0) * ebv;
 
         // --- measurement
         for (Band bd : Band.values()) {
@@ -348,10 +401,76 @@ public final class ForwardModel {
         return s;
     }
 
-    private static double colour(TeffRelation r, double teff, double feh, double logg,
-                                 UniformRandomProvider rng, ZigguratSampler.NormalizedGaussian g) {
-        // the star's own offset from the relation, in Teff, of the size of the relation's scatter
-        double t = teff + r.scatterK() * g.sample();
-        return ColourInversion.colour(r, t, feh, logg);
+    /** Colour of a theta-form relation (C10 or GHB09) at the star's Teff offset by the relation's scatter. */
+    private static double theta(double[] coef, double sigmaK, double lo, double hi, double teff, double feh,
+                                UniformRandomProvider rng, ZigguratSampler.NormalizedGaussian g) {
+        double t = teff + sigmaK * g.sample();
+        return ColourInversion.colour(x -> thetaTeff(coef, x, feh), lo, hi, t);
     }
+
+    /**
+     * B−V of a dwarf or subgiant: Casagrande et al. 2010 up to 7000 K, Flower 1996/Torres 2010 above 7500 K, and
+     * between them the two colours mixed linearly in Teff (the job blends its two estimates over the same range).
+     */
+    private static double dwarfBv(double teff, double feh, UniformRandomProvider rng, ZigguratSampler.NormalizedGaussian g) {
+        double zc = g.sample();
+        double zf = g.sample();
+        double c10 = ColourInversion.colour(x -> thetaTeff(C10_BV, x, feh), 0.18, 1.29, teff + C10_BV_SIG * zc);
+        if (teff <= 7000) {
+            return c10;
+        }
+        double f96 = ColourInversion.colour(IndependentRelations::flowerTeff, -0.40, 0.50, teff * (1 + F96_SCATTER_FRAC * zf));
+        if (teff >= 7500) {
+            return f96;
+        }
+        double w = (teff - 7000) / 500;
+        return (1 - w) * c10 + w * f96;
+    }
+
+    private double lastBpRp;
+
+    /**
+     * Absolute magnitudes of an M dwarf from its absolute Ks and Teff: J−H and H−Ks from our own approximation
+     * (J−H = 0.60 + 1.2·10⁻⁴ (Teff − 3400 K) + 0.1 [Fe/H], H−Ks = 0.22 + 10⁻⁴ (3900 K − Teff), both clipped; near
+     * what M dwarfs show, not a calibration), V−J and V−I_C from the Mann et al. 2015 J−H forms, BP−RP from their
+     * plain form, each run backwards at Teff offset by the relation's scatter with the table note's 60 K (and the
+     * job's extra 100 K for BP−RP) in quadrature; B−V and V−R_C from our approximations (outside every relation).
+     */
+    private void mDwarfMagnitudes(double teff, double feh, double mKs, UniformRandomProvider rng,
+                                  ZigguratSampler.NormalizedGaussian g) {
+        double jh = Math.max(0.45, Math.min(0.75, 0.60 + 1.2e-4 * (teff - 3400) + 0.1 * feh));
+        double hk = Math.max(0.15, Math.min(0.40, 0.22 + 1e-4 * (3900 - teff)));
+        double sysK = M15_SYSTEMATIC_K;
+        double tj = teff + Math.hypot(M15_VJ_JH_SIG, sysK) * g.sample();
+        double ti = teff + Math.hypot(M15_VI_JH_SIG, sysK) * g.sample();
+        double tb = teff + Math.sqrt(M15_BPRP_SIG * M15_BPRP_SIG + sysK * sysK + 100 * 100) * g.sample();
+        double vj = ColourInversion.colour(x -> mannTeff(M15_VJ_JH, x, jh), 1.8, MANN_VJ_TURN, tj);
+        double vi = ColourInversion.colour(x -> mannTeff(M15_VI_JH, x, jh), 1.0, MANN_VI_TURN, ti);
+        lastBpRp = ColourInversion.colour(x -> mannTeff(M15_BPRP, x, 0), 1.2, MANN_BPRP_TURN, tb);
+        double ks = mKs;
+        double h = ks + hk;
+        double j = h + jh;
+        double v = j + vj;
+        absMag[Band.KS.ordinal()] = ks;
+        absMag[Band.H.ordinal()] = h;
+        absMag[Band.J.ordinal()] = j;
+        absMag[Band.V.ordinal()] = v;
+        absMag[Band.IC.ordinal()] = v - vi;
+        absMag[Band.RC.ordinal()] = v - (0.45 * vi + 0.05);
+        absMag[Band.B.ordinal()] = v + Math.min(2.0, 1.40 + 2.5e-4 * Math.max(0, 4100 - teff));
+    }
+
+    /** Where a Mann polynomial stops falling with colour (its red turnover, near 2800 K), found by a scan. */
+    static double mannTurnover(double[] k, double from) {
+        for (double x = from; x < 15; x += 1e-3) {
+            if (!(mannTeff(k, x + 1e-3, 0) < mannTeff(k, x, 0))) {
+                return x;
+            }
+        }
+        return 15;
+    }
+
+    private static final double MANN_VJ_TURN = mannTurnover(M15_VJ_JH, 1.8);
+    private static final double MANN_VI_TURN = mannTurnover(M15_VI_JH, 1.0);
+    private static final double MANN_BPRP_TURN = mannTurnover(M15_BPRP, 1.2);
 }

@@ -52,6 +52,7 @@ public final class SampleSurvey {
                 .add("true_dist_pc", DataTypes.DoubleType, false)
                 .add("true_parallax_mas", DataTypes.DoubleType, false)
                 .add("true_ebv", DataTypes.DoubleType, false)
+                .add("true_regime", DataTypes.StringType, false)
                 .add("defect", DataTypes.StringType, true);
     }
 
@@ -81,6 +82,7 @@ public final class SampleSurvey {
         v.add(s.distPc);
         v.add(s.parallaxTrueMas);
         v.add(s.ebvTrue);
+        v.add(s.regime);
         v.add(s.defect);
         return RowFactory.create(v.toArray());
     }
