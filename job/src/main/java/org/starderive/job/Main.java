@@ -234,7 +234,7 @@ public final class Main implements Runnable {
 
     @Command(name = "recovery", mixinStandardHelpOptions = true, sortOptions = false,
             description = "Injection-recovery report: a catalogue derived from the synthetic survey against its truth "
-                    + "table (bias, scatter, 68 % coverage per parallax-significance bin and class; flag diagnostics).")
+                    + "table (bias, scatter, 68 %% coverage per parallax-significance bin and class; flag diagnostics).")
     static final class Recovery implements Callable<Integer> {
         @CommandLine.Spec
         CommandLine.Model.CommandSpec spec;

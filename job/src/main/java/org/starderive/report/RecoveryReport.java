@@ -35,9 +35,12 @@ public final class RecoveryReport {
     static final double[] SNR_EDGES = {0, 1, 3, 5, 10, 20, Double.POSITIVE_INFINITY};
     static final String[] SNR_LABELS = {"<1", "1-3", "3-5", "5-10", "10-20", ">20"};
     static final String[] QUANTITIES = {"dist", "teff", "lum", "radius", "mass"};
-    /** Rows whose colours were all usable and whose inputs were valid: the "in-range" subset. */
+    /**
+     * Rows whose colours were all usable, whose inputs were valid and whose L does not rest on a bolometric correction
+     * flagged as unreliable (an M dwarf without Ks): the "in-range" subset.
+     */
     static final long NOT_CLEAN = QualityFlag.COLOUR_OUT_OF_RANGE.mask() | QualityFlag.TEFF_EXTRAPOLATED.mask()
-            | QualityFlag.INPUT_INVALID.mask() | QualityFlag.MAGNITUDE_SENTINEL.mask();
+            | QualityFlag.INPUT_INVALID.mask() | QualityFlag.MAGNITUDE_SENTINEL.mask() | QualityFlag.BC_UNRELIABLE.mask();
 
     /** Statistics of one quantity in one group. */
     public static final class Stat {
@@ -54,6 +57,12 @@ public final class RecoveryReport {
         public Map<String, Stat> clean = new LinkedHashMap<>();
         public Map<String, Map<String, Stat>> bySnr = new LinkedHashMap<>();
         public Map<String, Map<String, Stat>> byClass = new LinkedHashMap<>();
+        /** True ϖ/σ &gt; 10 and in-range colours, per calibration regime of the truth (empty for an older truth table). */
+        public Map<String, Map<String, Stat>> byRegime = new LinkedHashMap<>();
+        /** Who gets parameters: per group of the truth, stars / with Teff / with L and R / with mass / median Teff bias. */
+        public Map<String, double[]> reach = new LinkedHashMap<>();
+        /** Share of main-sequence stars of 2800–30,000 K with true ϖ/σ &gt; 10 that get Teff, L, R and mass. */
+        public double msReachShare = Double.NaN;
         /** Lowest true-S/N bin that has distances, and its statistics. */
         public String lowestBin;
         public Map<String, Stat> lowest = new LinkedHashMap<>();
@@ -167,6 +176,12 @@ public final class RecoveryReport {
             Column[] a = allAggs();
             Dataset<Row> clean = j.filter(expr("true_parallax_mas / parallax_err_mas > 10 AND (flags & " + NOT_CLEAN + ") = 0"));
             res.clean = stats(clean.agg(a[0], java.util.Arrays.copyOfRange(a, 1, a.length)).first());
+            if (t.schema().getFieldIndex("true_regime").isDefined()) {
+                // subgiants apart: the job's main-sequence mass relations do not hold for them
+                res.byRegime = grouped(clean.withColumn("regime_key", expr("CASE WHEN true_class = 'subgiant' THEN "
+                        + "concat(true_regime, ' (subgiants)') ELSE true_regime END")), "regime_key");
+            }
+            reach(j, res);
             for (Map.Entry<String, Map<String, Stat>> e : res.bySnr.entrySet()) {
                 if (e.getValue().get("dist").n > 0 && e.getValue().get("teff").n > 0) {
                     res.lowestBin = e.getKey();
@@ -193,6 +208,41 @@ public final class RecoveryReport {
         } finally {
             j.unpersist();
         }
+    }
+
+    /** Groups of the truth for the "who gets parameters" table (a star can be in more than one). */
+    static final String[][] REACH_GROUPS = {
+            {"main sequence < 3900 K", "true_class = 'ms' AND true_teff_k < 3900"},
+            {"main sequence 3900-7000 K", "true_class = 'ms' AND true_teff_k >= 3900 AND true_teff_k < 7000"},
+            {"main sequence 7000-10,000 K", "true_class = 'ms' AND true_teff_k >= 7000 AND true_teff_k < 10000"},
+            {"main sequence > 10,000 K", "true_class = 'ms' AND true_teff_k >= 10000"},
+            {"M dwarfs (ms < 3900 K) with true parallax/error > 10", "true_class = 'ms' AND true_teff_k < 3900 AND true_parallax_mas / parallax_err_mas > 10"},
+            {"main sequence 2800-30,000 K with true parallax/error > 10", "true_class = 'ms' AND true_teff_k >= 2800 AND true_teff_k <= 30000 AND true_parallax_mas / parallax_err_mas > 10"},
+            {"giants and subgiants", "true_class <> 'ms'"}};
+
+    private static void reach(Dataset<Row> j, Result res) {
+        List<Column> a = new ArrayList<>();
+        for (String[] g : REACH_GROUPS) {
+            String in = "(" + g[1] + ")";
+            a.add(expr("sum(CASE WHEN " + in + " THEN 1 ELSE 0 END)"));
+            a.add(expr("sum(CASE WHEN " + in + " AND teff_k IS NOT NULL THEN 1 ELSE 0 END)"));
+            a.add(expr("sum(CASE WHEN " + in + " AND lum_lsun IS NOT NULL AND radius_rsun IS NOT NULL THEN 1 ELSE 0 END)"));
+            a.add(expr("sum(CASE WHEN " + in + " AND mass_msun IS NOT NULL THEN 1 ELSE 0 END)"));
+            a.add(expr("sum(CASE WHEN " + in + " AND teff_k IS NOT NULL AND lum_lsun IS NOT NULL AND radius_rsun IS NOT NULL"
+                    + " AND mass_msun IS NOT NULL THEN 1 ELSE 0 END)"));
+            a.add(expr("percentile_approx(CASE WHEN " + in + " THEN teff_k / true_teff_k - 1 END, 0.5, 10000)"));
+        }
+        Row r = j.agg(a.get(0), a.subList(1, a.size()).toArray(new Column[0])).first();
+        for (int i = 0; i < REACH_GROUPS.length; i++) {
+            double[] v = new double[6];
+            for (int k = 0; k < 6; k++) {
+                Object o = r.get(6 * i + k);
+                v[k] = o == null ? Double.NaN : ((Number) o).doubleValue();
+            }
+            res.reach.put(REACH_GROUPS[i][0], v);
+        }
+        double[] ms = res.reach.get(REACH_GROUPS[5][0]);
+        res.msReachShare = ms[0] == 0 ? Double.NaN : ms[4] / ms[0];
     }
 
     private static String pct(double v) {
@@ -254,12 +304,21 @@ public final class RecoveryReport {
         sb.append("The synthetic photometry is made with the same published relations the job inverts, so this checks the ")
           .append("inference, the flags and the uncertainties, not the calibrations themselves (those are checked against ")
           .append("published tables in the physics tests). Bins use the true parallax over its error.\n\n");
-        sb.append("## Headline: true parallax/error > 10, all colours in range, valid inputs\n\n| quantity | n | bias | scatter | 68 % coverage |\n|---|---|---|---|---|\n");
+        sb.append("## Headline: true parallax/error > 10, all colours in range, valid inputs, no unreliable BC\n\n| quantity | n | bias | scatter | 68 % coverage |\n|---|---|---|---|---|\n");
         res.clean.forEach((q, s) -> sb.append(String.format("| %s | %d | %s | %s | %s |%n", q, s.n, pct(s.bias), pct(s.scatter).replace("+", ""), frac(s.coverage))));
         sb.append("\n## By parallax significance\n\n");
         table(sb, "true parallax/error", res.bySnr);
         sb.append("\n![bias](bias_vs_snr.png)\n\n![coverage](coverage_vs_snr.png)\n\n## By true class\n\n");
         table(sb, "class", res.byClass);
+        if (!res.byRegime.isEmpty()) {
+            sb.append("\n## By calibration regime of the truth: true parallax/error > 10, all colours in range, valid inputs, no unreliable BC\n\n");
+            table(sb, "regime", res.byRegime);
+        }
+        sb.append("\n## Who gets parameters\n\n| stars (truth) | n | with Teff | with L and R | with mass | with all four | median Teff bias |\n")
+          .append("|---|---|---|---|---|---|---|\n");
+        res.reach.forEach((k, v) -> sb.append(String.format("| %s | %,d | %,d (%.0f %%) | %,d | %,d | %,d (%.1f %%) | %s |%n", k, (long) v[0],
+                (long) v[1], v[0] == 0 ? 0 : 100 * v[1] / v[0], (long) v[2], (long) v[3], (long) v[4],
+                v[0] == 0 ? 0 : 100 * v[4] / v[0], pct(v[5]))));
         sb.append("\n## Flags: how often, and are the flagged stars the badly recovered ones?\n\n")
           .append("| flag | share of stars | median abs. Teff error, flagged | not flagged | median abs. distance error, flagged | not flagged |\n|---|---|---|---|---|---|\n");
         res.flags.forEach((f, v) -> sb.append(String.format("| `%s` | %s | %s | %s | %s | %s |%n", f, frac(v[0]),
