@@ -5,7 +5,6 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.nio.file.Files;
 import java.nio.file.Path;
-import java.nio.file.Paths;
 import java.util.ArrayList;
 import java.util.HashMap;
 import java.util.LinkedHashMap;
@@ -144,7 +143,7 @@ class BadInputMatrixTest {
 
     @Test
     void theDocumentedMatrixListsEveryCase() throws Exception {
-        String doc = Files.readString(Paths.get("..", "docs", "bad-input-matrix.md"));
+        String doc = Files.readString(ProjectFiles.path("docs", "bad-input-matrix.md"));
         for (Case c : cases()) {
             assertTrue(doc.contains("| " + c.name + " |"), "docs/bad-input-matrix.md lacks the case: " + c.name);
         }

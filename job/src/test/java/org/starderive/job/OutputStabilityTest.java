@@ -35,8 +35,8 @@ class OutputStabilityTest {
     static Path tmp;
 
     private final SparkSession spark = SharedSpark.spark();
-    private static final Path GOLDEN = Path.of("src", "test", "resources", "golden");
-    private static final String CONFIG = Path.of("..", "sample-survey", "config", "kestrel.yaml").toString();
+    private static final Path GOLDEN = ProjectFiles.path("job", "src", "test", "resources", "golden");
+    private static final String CONFIG = ProjectFiles.path("sample-survey", "config", "kestrel.yaml").toString();
 
     @Test
     void analyticCatalogueEqualsTheRecordedOne() throws Exception {
