@@ -6,6 +6,7 @@ import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.node.ObjectNode;
 import com.fasterxml.jackson.dataformat.yaml.YAMLFactory;
 import java.io.IOException;
+import java.io.StringReader;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
@@ -19,12 +20,17 @@ import java.util.TreeSet;
 import org.starderive.physics.Band;
 import org.starderive.physics.DeriveSettings;
 import org.starderive.udf.StarColumns;
+import org.yaml.snakeyaml.Yaml;
+import org.yaml.snakeyaml.error.YAMLException;
+import org.yaml.snakeyaml.events.CollectionStartEvent;
+import org.yaml.snakeyaml.events.Event;
+import org.yaml.snakeyaml.events.ScalarEvent;
 
 /**
  * The job's configuration: how the survey's columns map to ours, their units, and the physics settings.
  * Read from YAML as <em>data only</em>: every key is looked up in the tables below, an unknown key or a value of the
  * wrong kind stops the job (exit 2) with a message naming the file, the key and the rule. Nothing in the file is
- * ever evaluated or used as a class name.
+ * ever evaluated or used as a class name; a YAML tag ({@code !!java.net.URL ...}, {@code !custom}) stops the job too.
  *
  * <pre>
  * columns:
@@ -267,6 +273,11 @@ public final class JobConfig {
             throw JobException.config("Invalid config file " + origin + ": not valid YAML ("
                     + e.getOriginalMessage() + ")");
         }
+        try {
+            refuseTags(yaml, origin);
+        } catch (YAMLException e) {
+            throw JobException.config("Invalid config file " + origin + ": not valid YAML (" + e.getMessage() + ")");
+        }
         if (root == null || root.isNull() || root.isMissingNode()) {
             root = mapper.createObjectNode();
         }
@@ -275,6 +286,33 @@ public final class JobConfig {
                     + new TreeSet<>(TOP_KEYS));
         }
         return new JobConfig(origin, root);
+    }
+
+    /**
+     * Data only: a YAML tag ({@code !!java.net.URL}, {@code !custom}, even {@code !!str}) asks the reader to construct
+     * a type or to reinterpret a value. The tree reader drops most tags silently, so the value would mean something
+     * other than what the file says; any tag, on a key or a value, stops the job instead. The scan reads SnakeYAML's
+     * event stream (the parser under Jackson's YAML module): parsing only, nothing is constructed.
+     */
+    private static void refuseTags(String yaml, String origin) {
+        for (Event ev : new Yaml().parse(new StringReader(yaml))) {
+            String tag = ev instanceof ScalarEvent ? ((ScalarEvent) ev).getTag()
+                    : ev instanceof CollectionStartEvent ? ((CollectionStartEvent) ev).getTag() : null;
+            if (tag != null) {
+                throw JobException.config("Invalid config file " + origin + ": YAML tag " + shownTag(tag) + " at line "
+                        + (ev.getStartMark().getLine() + 1)
+                        + " (rule: tags are not allowed; the file is data only, nothing in it is evaluated)");
+            }
+        }
+    }
+
+    /** The tag as it is written in the file: the parser hands core and global tags resolved. */
+    private static String shownTag(String tag) {
+        String core = "tag:yaml.org,2002:";
+        if (tag.startsWith(core)) {
+            return "!!" + tag.substring(core.length());
+        }
+        return tag.startsWith("!") ? tag : "!<" + tag + ">";
     }
 
     private JobException bad(String key, String value, String rule) {

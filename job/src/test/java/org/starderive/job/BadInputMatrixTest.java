@@ -5,7 +5,6 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.nio.file.Files;
 import java.nio.file.Path;
-import java.nio.file.Paths;
 import java.util.ArrayList;
 import java.util.HashMap;
 import java.util.LinkedHashMap;
@@ -19,15 +18,20 @@ import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 import org.starderive.physics.QualityFlag;
 import org.starderive.testing.SharedSpark;
+import org.starderive.udf.DerivedSchema;
 
 /**
  * The row-level half of the bad-input matrix (docs/bad-input-matrix.md): one table, one row per case, one run of
- * the job. Every row must come out exactly once, with the expected flag, and the run must succeed. The
- * dataset-level half (refused before anything is written) is {@link DatasetErrorsTest}.
+ * the job. Every row must come out exactly once, with the expected flag, and the run must succeed; a bad value that
+ * is to be ignored must leave every derived value as it is for the same row without that value. The dataset-level
+ * half (refused before anything is written) is {@link DatasetErrorsTest}.
  */
 class BadInputMatrixTest {
     @TempDir
     Path tmp;
+
+    /** Id of the row without the bad value of case id k: k + this. */
+    private static final long WITHOUT_ID_OFFSET = 1_000_000L;
 
     /** Columns of TestCatalogs.schema(), by name. */
     private static final List<String> COLS = List.of(TestCatalogs.schema().fieldNames());
@@ -36,11 +40,19 @@ class BadInputMatrixTest {
         final String name;
         final Consumer<Object[]> mutate;
         final QualityFlag[] expect;
+        /** The same row with the bad value removed; null when the case has no value to ignore (see cases()). */
+        Consumer<Object[]> without;
 
         Case(String name, Consumer<Object[]> mutate, QualityFlag... expect) {
             this.name = name;
             this.mutate = mutate;
             this.expect = expect;
+        }
+
+        /** The bad value must be ignored: every derived value equals the one of the row without it. */
+        Case ignoredLike(Consumer<Object[]> rowWithout) {
+            this.without = rowWithout;
+            return this;
         }
     }
 
@@ -49,40 +61,72 @@ class BadInputMatrixTest {
         return r -> r[i] = v;
     }
 
+    /** The given fields missing (null). */
+    private static Consumer<Object[]> missing(String... cols) {
+        return r -> {
+            for (String c : cols) {
+                r[COLS.indexOf(c)] = null;
+            }
+        };
+    }
+
+    /**
+     * The cases. A bad value that must be ignored carries {@code ignoredLike(row without it)}; missing values (null
+     * parallax, V, E(B-V), everything), valid measurements that are flagged (zero or negative parallax, colours no
+     * relation covers) and the duplicated id have nothing to ignore.
+     */
     static List<Case> cases() {
         List<Case> c = new ArrayList<>();
         c.add(new Case("parallax null", set("parallax_mas", null), QualityFlag.PARALLAX_MISSING));
-        c.add(new Case("parallax NaN", set("parallax_mas", Double.NaN), QualityFlag.INPUT_INVALID));
-        c.add(new Case("parallax +inf", set("parallax_mas", Double.POSITIVE_INFINITY), QualityFlag.INPUT_INVALID));
-        c.add(new Case("parallax -inf", set("parallax_mas", Double.NEGATIVE_INFINITY), QualityFlag.INPUT_INVALID));
-        c.add(new Case("parallax error null", set("parallax_err_mas", null), QualityFlag.INPUT_INVALID));
-        c.add(new Case("parallax error zero", set("parallax_err_mas", 0.0), QualityFlag.INPUT_INVALID));
-        c.add(new Case("parallax error negative", set("parallax_err_mas", -0.1), QualityFlag.INPUT_INVALID));
-        c.add(new Case("parallax error NaN", set("parallax_err_mas", Double.NaN), QualityFlag.INPUT_INVALID));
+        c.add(new Case("parallax NaN", set("parallax_mas", Double.NaN), QualityFlag.INPUT_INVALID).ignoredLike(missing("parallax_mas")));
+        c.add(new Case("parallax +inf", set("parallax_mas", Double.POSITIVE_INFINITY), QualityFlag.INPUT_INVALID)
+                .ignoredLike(missing("parallax_mas")));
+        c.add(new Case("parallax -inf", set("parallax_mas", Double.NEGATIVE_INFINITY), QualityFlag.INPUT_INVALID)
+                .ignoredLike(missing("parallax_mas")));
+        // a parallax without a valid error is unusable: the row must come out as if it had no parallax at all
+        c.add(new Case("parallax error null", set("parallax_err_mas", null), QualityFlag.INPUT_INVALID)
+                .ignoredLike(missing("parallax_mas", "parallax_err_mas")));
+        c.add(new Case("parallax error zero", set("parallax_err_mas", 0.0), QualityFlag.INPUT_INVALID)
+                .ignoredLike(missing("parallax_mas", "parallax_err_mas")));
+        c.add(new Case("parallax error negative", set("parallax_err_mas", -0.1), QualityFlag.INPUT_INVALID)
+                .ignoredLike(missing("parallax_mas", "parallax_err_mas")));
+        c.add(new Case("parallax error NaN", set("parallax_err_mas", Double.NaN), QualityFlag.INPUT_INVALID)
+                .ignoredLike(missing("parallax_mas", "parallax_err_mas")));
+        // zero and negative parallaxes are measurements, not bad values: kept (parallax_corr_mas), flagged, no distance
         c.add(new Case("parallax zero", set("parallax_mas", 0.0), QualityFlag.PARALLAX_NONPOSITIVE, QualityFlag.PARALLAX_LOW_SNR,
                 QualityFlag.DISTANCE_WITHHELD));
         c.add(new Case("parallax negative", set("parallax_mas", -1.5), QualityFlag.PARALLAX_NONPOSITIVE, QualityFlag.PARALLAX_LOW_SNR,
                 QualityFlag.DISTANCE_WITHHELD));
-        c.add(new Case("parallax 1000x too large (uas read as mas)", set("parallax_mas", 25_000.0), QualityFlag.PARALLAX_IMPLAUSIBLE));
+        c.add(new Case("parallax 1000x too large (uas read as mas)", set("parallax_mas", 25_000.0), QualityFlag.PARALLAX_IMPLAUSIBLE)
+                .ignoredLike(missing("parallax_mas")));
         c.add(new Case("V null", set("mag_v", null), QualityFlag.PHOTOMETRY_MISSING));
-        c.add(new Case("V NaN", set("mag_v", Double.NaN), QualityFlag.INPUT_INVALID));
-        c.add(new Case("V +inf", set("mag_v", Double.POSITIVE_INFINITY), QualityFlag.INPUT_INVALID));
-        c.add(new Case("V sentinel 99", set("mag_v", 99.0), QualityFlag.MAGNITUDE_SENTINEL));
-        c.add(new Case("V sentinel -99", set("mag_v", -99.0), QualityFlag.MAGNITUDE_SENTINEL));
-        c.add(new Case("V sentinel 99.99", set("mag_v", 99.99), QualityFlag.MAGNITUDE_SENTINEL));
-        c.add(new Case("V error zero", set("mag_v_err", 0.0), QualityFlag.INPUT_INVALID));
-        c.add(new Case("V error negative", set("mag_v_err", -0.02), QualityFlag.INPUT_INVALID));
-        c.add(new Case("Ks error NaN", set("mag_ks_err", Double.NaN), QualityFlag.INPUT_INVALID));
+        c.add(new Case("V NaN", set("mag_v", Double.NaN), QualityFlag.INPUT_INVALID).ignoredLike(missing("mag_v")));
+        c.add(new Case("V +inf", set("mag_v", Double.POSITIVE_INFINITY), QualityFlag.INPUT_INVALID).ignoredLike(missing("mag_v")));
+        c.add(new Case("V sentinel 99", set("mag_v", 99.0), QualityFlag.MAGNITUDE_SENTINEL).ignoredLike(missing("mag_v")));
+        c.add(new Case("V sentinel -99", set("mag_v", -99.0), QualityFlag.MAGNITUDE_SENTINEL).ignoredLike(missing("mag_v")));
+        c.add(new Case("V sentinel 99.99", set("mag_v", 99.99), QualityFlag.MAGNITUDE_SENTINEL).ignoredLike(missing("mag_v")));
+        // a magnitude without a valid error is unusable: as if the band were not measured
+        c.add(new Case("V error zero", set("mag_v_err", 0.0), QualityFlag.INPUT_INVALID).ignoredLike(missing("mag_v", "mag_v_err")));
+        c.add(new Case("V error negative", set("mag_v_err", -0.02), QualityFlag.INPUT_INVALID)
+                .ignoredLike(missing("mag_v", "mag_v_err")));
+        c.add(new Case("Ks error NaN", set("mag_ks_err", Double.NaN), QualityFlag.INPUT_INVALID)
+                .ignoredLike(missing("mag_ks", "mag_ks_err")));
+        // valid magnitudes whose colours no relation covers: still used (absolute magnitudes), only Teff is lost
         c.add(new Case("colours far outside every relation", r -> {
             r[COLS.indexOf("mag_ks")] = (Double) r[COLS.indexOf("mag_v")] - 8.0;
             r[COLS.indexOf("mag_j")] = (Double) r[COLS.indexOf("mag_v")] - 6.5;
             r[COLS.indexOf("mag_b")] = (Double) r[COLS.indexOf("mag_v")] + 3.0;
         }, QualityFlag.COLOUR_OUT_OF_RANGE));
-        c.add(new Case("[Fe/H] above every range (+3)", set("feh", 3.0), QualityFlag.INPUT_INVALID, QualityFlag.METALLICITY_ASSUMED));
-        c.add(new Case("[Fe/H] below every range (-6)", set("feh", -6.0), QualityFlag.INPUT_INVALID, QualityFlag.METALLICITY_ASSUMED));
-        c.add(new Case("[Fe/H] NaN", set("feh", Double.NaN), QualityFlag.INPUT_INVALID, QualityFlag.METALLICITY_ASSUMED));
-        c.add(new Case("E(B-V) negative", set("ebv", -0.05), QualityFlag.INPUT_INVALID, QualityFlag.EXTINCTION_ASSUMED));
-        c.add(new Case("E(B-V) +inf", set("ebv", Double.POSITIVE_INFINITY), QualityFlag.INPUT_INVALID, QualityFlag.EXTINCTION_ASSUMED));
+        c.add(new Case("[Fe/H] above every range (+3)", set("feh", 3.0), QualityFlag.INPUT_INVALID, QualityFlag.METALLICITY_ASSUMED)
+                .ignoredLike(missing("feh")));
+        c.add(new Case("[Fe/H] below every range (-6)", set("feh", -6.0), QualityFlag.INPUT_INVALID, QualityFlag.METALLICITY_ASSUMED)
+                .ignoredLike(missing("feh")));
+        c.add(new Case("[Fe/H] NaN", set("feh", Double.NaN), QualityFlag.INPUT_INVALID, QualityFlag.METALLICITY_ASSUMED)
+                .ignoredLike(missing("feh")));
+        c.add(new Case("E(B-V) negative", set("ebv", -0.05), QualityFlag.INPUT_INVALID, QualityFlag.EXTINCTION_ASSUMED)
+                .ignoredLike(missing("ebv")));
+        c.add(new Case("E(B-V) +inf", set("ebv", Double.POSITIVE_INFINITY), QualityFlag.INPUT_INVALID, QualityFlag.EXTINCTION_ASSUMED)
+                .ignoredLike(missing("ebv")));
         c.add(new Case("E(B-V) null", set("ebv", null), QualityFlag.EXTINCTION_ASSUMED));
         c.add(new Case("everything but the id null", r -> {
             for (int i = 2; i < r.length; i++) {
@@ -116,6 +160,12 @@ class BadInputMatrixTest {
             if (!cases.get(k).name.equals("duplicated id")) {
                 byId.put(100L + k, cases.get(k));
             }
+            if (cases.get(k).without != null) {
+                Object[] w = ref.clone();
+                w[0] = WITHOUT_ID_OFFSET + 100L + k;
+                cases.get(k).without.accept(w);
+                rows.add(RowFactory.create(w));
+            }
         }
         Path in = tmp.resolve("in");
         Path out = tmp.resolve("out");
@@ -135,6 +185,28 @@ class BadInputMatrixTest {
                 assertTrue(q.isSet(f.get(0)), e.getValue().name + " should carry " + q + ", has " + QualityFlag.names(f.get(0)));
             }
         }
+        // a bad value that is ignored leaves no trace in any derived value: each equals the one of the same row
+        // without that value (only the flags differ, by design)
+        List<String> derived = new ArrayList<>(DerivedSchema.names());
+        derived.removeAll(List.of("flags", "flag_names"));
+        Map<Long, Row> derivedById = new HashMap<>();
+        for (Row row : spark.read().parquet(out.toString()).select("star_id", derived.toArray(new String[0])).collectAsList()) {
+            derivedById.put(row.getLong(0), row);
+        }
+        int compared = 0;
+        for (Map.Entry<Long, Case> e : byId.entrySet()) {
+            if (e.getValue().without == null) {
+                continue;
+            }
+            Row bad = derivedById.get(e.getKey());
+            Row without = derivedById.get(WITHOUT_ID_OFFSET + e.getKey());
+            for (int i = 0; i < derived.size(); i++) {
+                assertEquals(without.get(i + 1), bad.get(i + 1), e.getValue().name + ": " + derived.get(i)
+                        + " differs from the row without the bad value, so the bad value was used");
+            }
+            compared++;
+        }
+        assertEquals(21, compared, "cases checked against the row without their bad value");
         // the duplicated id: the reference row and its copy, both kept, both flagged
         assertEquals(2, flagsById.get(1L).size());
         for (long f : flagsById.get(1L)) {
@@ -144,7 +216,7 @@ class BadInputMatrixTest {
 
     @Test
     void theDocumentedMatrixListsEveryCase() throws Exception {
-        String doc = Files.readString(Paths.get("..", "docs", "bad-input-matrix.md"));
+        String doc = Files.readString(ProjectFiles.path("docs", "bad-input-matrix.md"));
         for (Case c : cases()) {
             assertTrue(doc.contains("| " + c.name + " |"), "docs/bad-input-matrix.md lacks the case: " + c.name);
         }

@@ -6,7 +6,6 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import java.io.IOException;
 import java.nio.file.Files;
 import java.nio.file.Path;
-import java.nio.file.Paths;
 import java.util.List;
 import java.util.Map;
 import java.util.TreeMap;
@@ -43,8 +42,8 @@ class HygieneTest {
 
     @Test
     void mainCodeNeverStartsProcessesOrShells() throws IOException {
-        for (String module : List.of("../udfs", "../sample-survey", ".")) {
-            Path src = Paths.get(module, "src", "main", "java");
+        for (String module : List.of("udfs", "sample-survey", "job")) {
+            Path src = ProjectFiles.path(module, "src", "main", "java");
             try (Stream<Path> s = Files.walk(src)) {
                 for (Path p : (Iterable<Path>) s.filter(f -> f.toString().endsWith(".java"))::iterator) {
                     String code = Files.readString(p);

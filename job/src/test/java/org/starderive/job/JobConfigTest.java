@@ -1,12 +1,20 @@
 package org.starderive.job;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.Map;
 import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
 import org.starderive.physics.Band;
 import org.starderive.physics.DeriveSettings;
+import org.yaml.snakeyaml.LoaderOptions;
+import org.yaml.snakeyaml.Yaml;
+import org.yaml.snakeyaml.constructor.Constructor;
 
 class JobConfigTest {
 
@@ -73,9 +81,35 @@ class JobConfigTest {
     }
 
     @Test
-    void yamlTagsAreNotEvaluated() {
-        // data only: a tag naming a Java class is not instantiated; the value is rejected as a value of the wrong kind
-        String msg = rejected("physics:\n  r_v: !!java.net.URL [\"http://127.0.0.1/\"]\n");
-        assertTrue(msg.contains("r_v"), msg);
+    void yamlTagsAreRefusedNotEvaluated(@TempDir Path tmp) throws Exception {
+        // A tag naming a Java class asks a YAML reader to construct it; java.io.FileOutputStream(String) creates the
+        // named file, so evaluation shows as that file appearing (construction of arbitrary types from global tags is
+        // CVE-2022-1471, the reason SnakeYAML 2.0 refuses global tags unless a TagInspector allows them). Without the
+        // tag the value is a plain column name and the config valid, so only the tag itself can make the job refuse.
+        Path marker = tmp.resolve("constructed-by-a-yaml-tag");
+        String tag = "!!java.io.FileOutputStream";
+        String yaml = "columns:\n  star_id: " + tag + " \"" + marker + "\"\n";
+        assertEquals(marker.toString(), JobConfig.parse(yaml.replace(tag + " ", ""), "untagged.yaml").idColumn(),
+                "control: untagged, the same document is a valid config");
+        LoaderOptions evaluating = new LoaderOptions();
+        evaluating.setTagInspector(t -> true);
+        Object constructed = ((Map<?, ?>) ((Map<?, ?>) new Yaml(new Constructor(evaluating)).load(yaml)).get("columns"))
+                .get("star_id");
+        ((java.io.Closeable) constructed).close();
+        assertTrue(Files.exists(marker), "control: a reader that evaluates tags creates " + marker);
+        Files.delete(marker);
+
+        Path file = Files.writeString(tmp.resolve("tagged.yaml"), yaml);
+        JobException e = assertThrows(JobException.class, () -> JobConfig.load(file));
+        assertEquals(JobException.Kind.CONFIG, e.kind());
+        assertTrue(e.getMessage().contains(file.toString()), "names the file: " + e.getMessage());
+        assertTrue(e.getMessage().contains(tag + " at line 2"), "names the tag and its line: " + e.getMessage());
+        assertTrue(e.getMessage().contains("tags are not allowed"), "names the rule: " + e.getMessage());
+        assertFalse(Files.exists(marker), "the tag was evaluated: " + marker + " exists");
+
+        // any tag: a custom global one, a local one, a core one on a key
+        assertTrue(rejected("physics: {r_v: !<tag:example.org,2024:rv> 3.1}").contains("!<tag:example.org,2024:rv>"));
+        assertTrue(rejected("physics: {r_v: !rv 3.1}").contains("tags are not allowed"));
+        assertTrue(rejected("physics: {!!str r_v: 3.1}").contains("!!str"));
     }
 }

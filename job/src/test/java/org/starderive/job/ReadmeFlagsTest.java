@@ -5,7 +5,6 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import java.io.IOException;
 import java.nio.file.Files;
 import java.nio.file.Path;
-import java.nio.file.Paths;
 import org.junit.jupiter.api.Test;
 import org.starderive.physics.QualityFlag;
 
@@ -13,7 +12,7 @@ import org.starderive.physics.QualityFlag;
 class ReadmeFlagsTest {
     @Test
     void everyFlagHasItsRowInTheReadme() throws IOException {
-        Path readme = Paths.get("..", "README.md");
+        Path readme = ProjectFiles.path("README.md");
         String text = Files.readString(readme);
         for (QualityFlag f : QualityFlag.values()) {
             String row = "| " + f.bit() + " | " + f.mask() + " | `" + f.name() + "` |";

@@ -4,15 +4,14 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import java.util.ArrayList;
+import java.util.Collections;
+import java.util.List;
 import org.apache.commons.math3.analysis.UnivariateFunction;
 import org.apache.commons.math3.analysis.integration.IterativeLegendreGaussIntegrator;
 import org.apache.commons.math3.analysis.solvers.BrentSolver;
-import org.apache.commons.math3.optim.MaxEval;
-import org.apache.commons.math3.optim.nonlinear.scalar.GoalType;
-import org.apache.commons.math3.optim.univariate.BrentOptimizer;
-import org.apache.commons.math3.optim.univariate.SearchInterval;
-import org.apache.commons.math3.optim.univariate.UnivariateObjectiveFunction;
-import org.apache.commons.math3.optim.univariate.UnivariatePointValuePair;
+import org.apache.commons.math3.analysis.solvers.LaguerreSolver;
+import org.apache.commons.math3.complex.Complex;
 import org.junit.jupiter.api.Test;
 
 class ParallaxDistanceTest {
@@ -34,26 +33,96 @@ class ParallaxDistanceTest {
         assertEquals(1.500, ParallaxDistance.edsdModeKpc(1.0, 0.5, L), 0.0005);
     }
 
+    /*
+     * Independent reference, typed here from Bailer-Jones 2015, PASP 127, 994 (exponentially decreasing space
+     * density prior): prior r^2 exp(-r/L) / (2 L^3), Gaussian likelihood of the parallax w with error s about 1/r, so
+     * the unnormalised posterior is r^2 exp(-r/L) exp(-(w - 1/r)^2 / (2 s^2)); its mode is a positive real root of
+     * r^3/L - 2 r^2 + (w/s^2) r - 1/s^2 = 0. Units: r and L in kpc, w and s in mas (1/kpc), consistent throughout.
+     * Nothing of ParallaxDistance or EdsdPosterior is used to build it.
+     */
+
+    /** Log of the unnormalised posterior above (Bailer-Jones 2015); -inf for r <= 0. */
+    private static double referenceLogPosterior(double r, double w, double s, double lengthKpc) {
+        if (!(r > 0)) {
+            return Double.NEGATIVE_INFINITY;
+        }
+        double d = w - 1 / r;
+        return 2 * Math.log(r) - r / lengthKpc - d * d / (2 * s * s);
+    }
+
+    /** Positive real roots of the Bailer-Jones 2015 cubic, by Commons Math's Laguerre solver (all complex roots). */
+    private static List<Double> cubicPositiveRoots(double w, double s, double lengthKpc) {
+        double s2 = s * s;
+        // coefficients in increasing powers of r: -1/s^2 + (w/s^2) r - 2 r^2 + r^3 / L
+        double[] cubic = {-1 / s2, w / s2, -2, 1 / lengthKpc};
+        List<Double> roots = new ArrayList<>();
+        for (Complex z : new LaguerreSolver(1e-15, 1e-15, 1e-300).solveAllComplex(cubic, 1.0)) {
+            if (Math.abs(z.getImaginary()) <= 1e-9 * Math.abs(z.getReal()) && z.getReal() > 0) {
+                roots.add(z.getReal());
+            }
+        }
+        return roots;
+    }
+
+    /**
+     * Mode: of the positive real roots of the cubic (there may be three: two maxima and the minimum between them)
+     * the one where the posterior typed above is highest.
+     */
+    private static double referenceModeKpc(double w, double s, double lengthKpc) {
+        double best = Double.NaN;
+        double bestLp = Double.NEGATIVE_INFINITY;
+        for (double r : cubicPositiveRoots(w, s, lengthKpc)) {
+            double lp = referenceLogPosterior(r, w, s, lengthKpc);
+            if (lp > bestLp) {
+                bestLp = lp;
+                best = r;
+            }
+        }
+        assertTrue(best > 0, "the cubic has a positive real root for w=" + w + " s=" + s);
+        return best;
+    }
+
     @Test
-    void modeIsTheMaximumFoundByAGeneralOptimiser() {
-        // reference: Commons Math Brent optimiser on the log posterior
-        double[][] cases = {{1, 0.1}, {1, 0.5}, {0.2, 0.1}, {0, 0.3}, {-0.5, 0.5}, {10, 0.05}, {0.05, 1.0}, {300, 0.02}};
+    void modeIsTheRootOfTheBailerJonesCubic() {
+        // reference: Bailer-Jones 2015, PASP 127, 994: the mode is a root of r^3/L - 2r^2 + (w/s^2) r - 1/s^2 = 0;
+        // solved here with Commons Math's LaguerreSolver, the root picked by the posterior typed in this test
+        double[][] cases = {{1, 0.1}, {1, 0.5}, {0.2, 0.1}, {0, 0.3}, {-0.5, 0.5}, {10, 0.05}, {0.05, 1.0}, {300, 0.02},
+            {-5, 0.5}, {0.5, 0.3}, {2, 1.5}};
         for (double[] c : cases) {
             double w = c[0];
             double s = c[1];
-            double mode = ParallaxDistance.edsdModeKpc(w, s, L);
-            UnivariatePointValuePair best = new BrentOptimizer(1e-12, 1e-14).optimize(new MaxEval(10000),
-                    new UnivariateObjectiveFunction(r -> ParallaxDistance.logPosterior(r, w, s, L)), GoalType.MAXIMIZE,
-                    new SearchInterval(1e-4, 50 * L, Math.max(1e-3, mode)));
-            assertEquals(best.getPoint(), mode, 1e-5 * Math.max(1, mode), "w=" + w + " s=" + s);
+            double ref = referenceModeKpc(w, s, L);
+            assertEquals(ref, ParallaxDistance.edsdModeKpc(w, s, L), 1e-9 * ref, "w=" + w + " s=" + s);
         }
     }
 
-    /** Reference percentiles: Commons Math Gauss-Legendre integration of the posterior, Brent root for the CDF. */
+    @Test
+    void withThreePositiveRootsTheHigherMaximumIsTheMode() {
+        // reference as above (Bailer-Jones 2015, PASP 127, 994). At w/s near 2.5-3 the cubic has three positive real
+        // roots: two maxima of the posterior and the minimum between them; the mode is the higher maximum, which is
+        // the smallest root in the first case and the largest in the second (posteriors typed in this test)
+        double[][] cases = {{4.9, 1.784}, {4.0, 1.5745}};
+        for (double[] c : cases) {
+            double w = c[0];
+            double s = c[1];
+            List<Double> roots = cubicPositiveRoots(w, s, L);
+            assertEquals(3, roots.size(), "three positive real roots for w=" + w + " s=" + s + ": " + roots);
+            double ref = referenceModeKpc(w, s, L);
+            assertEquals(ref, ParallaxDistance.edsdModeKpc(w, s, L), 1e-9 * ref, "w=" + w + " s=" + s);
+        }
+        assertEquals(Collections.min(cubicPositiveRoots(4.9, 1.784, L)), referenceModeKpc(4.9, 1.784, L));
+        assertEquals(Collections.max(cubicPositiveRoots(4.0, 1.5745, L)), referenceModeKpc(4.0, 1.5745, L));
+    }
+
+    /**
+     * Reference percentiles of the Bailer-Jones 2015 posterior typed in this test: Commons Math Gauss-Legendre
+     * integration of r^2 exp(-r/L) exp(-(w - 1/r)^2 / (2 s^2)) (scaled by its value at the reference mode, against
+     * underflow), Brent root for the CDF.
+     */
     private static double[] referencePercentiles(double w, double s, double[] probs) {
-        double mode = ParallaxDistance.edsdModeKpc(w, s, L);
-        double lpMax = ParallaxDistance.logPosterior(mode, w, s, L);
-        UnivariateFunction density = r -> Math.exp(ParallaxDistance.logPosterior(r, w, s, L) - lpMax);
+        double mode = referenceModeKpc(w, s, L);
+        double lpMax = referenceLogPosterior(mode, w, s, L);
+        UnivariateFunction density = r -> Math.exp(referenceLogPosterior(r, w, s, L) - lpMax);
         // log-spaced pieces from 1e-5 kpc to 60 L: fine enough for the narrowest case here
         int pieces = 4000;
         double lo = Math.log(1e-5);
@@ -85,6 +154,7 @@ class ParallaxDistanceTest {
 
     @Test
     void percentilesAgreeWithBruteForceIntegration() {
+        // reference: numerical integration of the Bailer-Jones 2015 (PASP 127, 994) posterior typed in this test
         double[] probs = {StarDeriver.P16, 0.5, StarDeriver.P84};
         double[][] cases = {{1, 0.1}, {1, 0.5}, {0.2, 0.1}, {0, 0.3}, {-0.5, 0.5}, {10, 0.05}, {0.05, 1.0}, {2, 0.3}};
         EdsdPosterior post = EdsdPosterior.standard();

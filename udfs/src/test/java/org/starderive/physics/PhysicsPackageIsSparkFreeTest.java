@@ -5,7 +5,6 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import java.io.IOException;
 import java.nio.file.Files;
 import java.nio.file.Path;
-import java.nio.file.Paths;
 import java.util.List;
 import java.util.stream.Collectors;
 import java.util.stream.Stream;
@@ -15,9 +14,13 @@ import org.junit.jupiter.api.Test;
 class PhysicsPackageIsSparkFreeTest {
 
     @Test
-    void noSparkImportInPhysicsSources() throws IOException {
-        Path dir = Paths.get("src/main/java/org/starderive/physics");
-        assertTrue(Files.isDirectory(dir), "run from the udfs module: " + dir.toAbsolutePath());
+    void noSparkImportInPhysicsSources() throws Exception {
+        // the module folder from where this class was compiled to (udfs/target/test-classes), so that the test does
+        // not depend on the working directory
+        Path module = Path.of(PhysicsPackageIsSparkFreeTest.class.getProtectionDomain().getCodeSource().getLocation().toURI())
+                .getParent().getParent();
+        Path dir = module.resolve(Path.of("src", "main", "java", "org", "starderive", "physics"));
+        assertTrue(Files.isDirectory(dir), "no physics sources at " + dir);
         // the package names are assembled so that this file does not itself contain them
         String spark = "org.apache." + "spark";
         String scala = "scala" + ".";

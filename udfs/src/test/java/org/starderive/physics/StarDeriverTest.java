@@ -54,7 +54,16 @@ class StarDeriverTest {
         assertEquals(LuminosityClass.MAIN_SEQUENCE, r.lumClass);
         assertEquals(StarResult.DistanceMethod.INVERSE_PARALLAX, r.distMethod);
         assertEquals("C10/B-V,C10/V-Ic,C10/V-J,C10/V-Ks,C10/J-Ks", r.teffFrom());
-        assertEquals(0L, r.flags & ~0L, "flags: " + QualityFlag.names(r.flags));
+        // every input present, valid and in range, parallax at 10^4 sigma, E(B-V) and [Fe/H] measured, colours inside
+        // every relation: no condition of the flag table (README) holds, so the whole mask is 0, undefined bits too
+        // (QualityFlag.names would not show those, hence the bits in the message)
+        assertEquals(0L, r.flags, "flags: " + QualityFlag.names(r.flags) + ", bits " + Long.toBinaryString(r.flags));
+        // and the 0 is not a mask that is never written: the same star without its [Fe/H] carries exactly
+        // METALLICITY_ASSUMED ("no per-star [Fe/H]: the default was used", README flag table)
+        StarInput noFeh = solarTwinAt10pc();
+        noFeh.hasFeh = noFeh.hasFehErr = false;
+        long oneFlag = new StarDeriver(DeriveSettings.defaults()).derive(noFeh, new StarResult()).flags;
+        assertEquals(METALLICITY_ASSUMED.mask(), oneFlag, "flags: " + QualityFlag.names(oneFlag));
         // the surface-brightness diameter (Kervella et al. 2004) agrees with the Stefan-Boltzmann one
         assertEquals(r.angDiamMas, r.angDiamSbrMas, 0.03 * r.angDiamMas);
         // every uncertainty is present and positive
