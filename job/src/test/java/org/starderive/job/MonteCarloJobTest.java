@@ -26,7 +26,7 @@ class MonteCarloJobTest {
 
     private static SparkSession spark;
     private static Path survey;
-    private static final String CONFIG = Path.of("..", "sample-survey", "config", "kestrel.yaml").toString();
+    private static final String CONFIG = ProjectFiles.path("sample-survey", "config", "kestrel.yaml").toString();
 
     @BeforeAll
     static void survey() {

@@ -13,15 +13,18 @@ import org.apache.spark.sql.SparkSession;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 import org.starderive.job.Main;
+import org.starderive.job.ProjectFiles;
 import org.starderive.sample.SampleSurvey;
 import org.starderive.testing.SharedSpark;
 
 /**
- * Injection-recovery on a small run (2·10^4 synthetic stars): the real job derives the Kestrel survey, the recovery
- * report compares with the truth. The synthetic photometry comes from the same published relations, so this tests
- * the inference, flags and uncertainties (the calibrations are checked against published tables elsewhere).
+ * Injection-recovery (6·10^4 synthetic stars): the real job derives the Kestrel survey, the recovery report compares
+ * with the truth. The synthetic photometry comes from the same published relations, typed a second time apart from
+ * the physics core, so this tests the inference, flags and uncertainties and catches a mistyped coefficient (the
+ * calibrations themselves are checked against published tables elsewhere).
  */
 class RecoveryTest {
+    private static final int STARS = 60_000;
     @TempDir
     Path tmp;
 
@@ -29,16 +32,16 @@ class RecoveryTest {
     void highSignificanceInRangeStarsAreRecoveredWithHonestIntervals() throws Exception {
         SparkSession spark = SharedSpark.spark();
         Path survey = tmp.resolve("survey");
-        SampleSurvey.write(spark, 20_000, 3, survey.toString(), 2, SaveMode.ErrorIfExists);
+        SampleSurvey.write(spark, STARS, 3, survey.toString(), 2, SaveMode.ErrorIfExists);
         Path derived = tmp.resolve("derived");
         int code = Main.execute("derive", "--input", survey.resolve("astrometry").toString(),
                 "--photometry", survey.resolve("photometry").toString(), "--join-on", "star_id",
-                "--config", Path.of("..", "sample-survey", "config", "kestrel.yaml").toString(),
+                "--config", ProjectFiles.path("sample-survey", "config", "kestrel.yaml").toString(),
                 "--output", derived.toString());
         assertEquals(0, code);
         Path out = tmp.resolve("recovery");
         RecoveryReport.Result r = RecoveryReport.run(spark, derived.toString(), survey.resolve("truth").toString(), out.toString());
-        assertEquals(20_000, r.stars);
+        assertEquals(STARS, r.stars);
 
         RecoveryReport.Stat teff = r.clean.get("teff");
         RecoveryReport.Stat radius = r.clean.get("radius");
@@ -50,6 +53,10 @@ class RecoveryTest {
             double c = r.clean.get(q).coverage;
             assertTrue(c >= 0.60 && c <= 0.76, q + " 68 % coverage " + c);
         }
+        perRegime(r);
+        // who gets parameters: main-sequence stars of 2800-30,000 K with true parallax/error > 10 that get Teff, L,
+        // R and mass (the rest lack the bands a relation needs at the survey's depth; see the closing note of #11)
+        assertTrue(r.msReachShare > 0.85, "share of main-sequence stars with all four: " + r.msReachShare);
         for (String f : List.of("index.md", "index.html", "recovery.json")) {
             assertTrue(Files.size(out.resolve(f)) > 0, f);
         }
@@ -64,5 +71,36 @@ class RecoveryTest {
         assertTrue(disagree[1] > disagree[2], "median |Teff error| flagged " + disagree[1] + " vs not " + disagree[2]);
         double[] withheld = r.flags.get("DISTANCE_WITHHELD");
         assertTrue(Double.isNaN(withheld[3]) && withheld[0] > 0.2, "withheld: share " + withheld[0] + ", |d error| " + withheld[3]);
+    }
+
+    /**
+     * Per calibration regime of the truth, stars with true parallax/error > 10 and trusted inputs: median bias of
+     * Teff, L, R and mass within 1 % (2 % for hot stars) and 68 % coverage within 0.63-0.73 (issue #11's targets),
+     * each widened by three standard errors of the estimate at this sample size (median: 1.2533 sigma / sqrt(n);
+     * coverage: binomial), so that the check tests the method and not one draw of the survey.
+     */
+    private static void perRegime(RecoveryReport.Result r) {
+        StringBuilder seen = new StringBuilder();
+        for (String regime : List.of("m_dwarf", "fgk_dwarf", "hot", "giant")) {
+            java.util.Map<String, RecoveryReport.Stat> m = r.byRegime.get(regime);
+            assertTrue(m != null, "regime " + regime + " in the report: " + r.byRegime.keySet());
+            double biasMax = regime.equals("hot") ? 0.02 : 0.01;
+            for (String q : List.of("teff", "lum", "radius", "mass")) {
+                RecoveryReport.Stat st = m.get(q);
+                if (regime.equals("giant") && q.equals("mass")) {
+                    assertEquals(0, st.n, "giants get no main-sequence mass");
+                    continue;
+                }
+                String ctx = regime + " " + q + ": n " + st.n + ", bias " + st.bias + ", scatter " + st.scatter
+                        + ", coverage " + st.coverage;
+                seen.append(ctx).append("; ");
+                assertTrue(st.n >= 100, ctx);
+                double seMedian = 1.2533 * st.scatter / Math.sqrt(st.n);
+                assertTrue(Math.abs(st.bias) <= biasMax + 3 * seMedian, ctx);
+                double seCov = Math.sqrt(0.68 * 0.32 / st.n);
+                assertTrue(st.coverage >= 0.63 - 3 * seCov && st.coverage <= 0.73 + 3 * seCov, ctx);
+            }
+        }
+        System.out.println("recovery per regime: " + seen);
     }
 }
