@@ -27,6 +27,7 @@ import org.apache.spark.sql.types.NumericType;
 import org.apache.spark.sql.types.StructField;
 import org.apache.spark.sql.types.StructType;
 import org.starderive.physics.Band;
+import org.starderive.physics.GaiaBandExtinction;
 import org.starderive.physics.QualityFlag;
 import org.starderive.udf.DerivedColumn;
 import org.starderive.udf.DerivedSchema;
@@ -207,6 +208,20 @@ public final class DerivePipeline {
             if (bands.isEmpty()) {
                 throw JobException.input("Input " + table + ": no magnitude column (rule: at least one of mag_b, mag_v, mag_rc, "
                         + "mag_ic, mag_j, mag_h, mag_ks, mag_g, mag_bp, mag_rp, or columns.bands in the config)");
+            }
+        }
+        // the G, BP, RP extinction coefficients (GaiaBandExtinction) are for one law at R_V = 3.1: with another R_V
+        // the optical bands would follow CCM at that R_V and these would not, so their colours would mix two laws
+        double rvGaia = GaiaBandExtinction.RV;
+        if (config.settings().rv() != rvGaia) {
+            for (Band b : bands.keySet()) {
+                if (b.isGaiaLike()) {
+                    JobConfig.BandMapping bm = bands.get(b);
+                    throw JobException.config("Config " + config.origin() + ": physics.r_v = " + config.settings().rv()
+                            + " with the " + b.label() + " column '" + (bm == null ? StarColumns.mag(b) : bm.magColumn)
+                            + "' of " + table + " (rule: the G, BP and RP extinction coefficients hold for R_V = " + rvGaia
+                            + " only; use r_v: " + rvGaia + ", or map only the other bands under columns.bands)");
+                }
             }
         }
         for (Band b : Band.values()) {

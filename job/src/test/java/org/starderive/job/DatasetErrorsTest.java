@@ -119,6 +119,23 @@ class DatasetErrorsTest {
     }
 
     @Test
+    void anotherRvWithGaiaBandsIsRefused() throws IOException {
+        // the G, BP, RP extinction coefficients (Casagrande et al. 2021) hold for R_V = 3.1 only: another R_V would
+        // redden the optical bands by one law and these by another
+        Path in = tmp.resolve("in-gaia");
+        TestCatalogs.frame(spark, TestCatalogs.rows(12, 1)).withColumn("mag_g", functions.col("mag_v").minus(0.1))
+                .withColumn("mag_g_err", functions.lit(0.01)).write().parquet(in.toString());
+        Path cfg = tmp.resolve("survey.yaml");
+        Files.writeString(cfg, "physics:\n  r_v: 3.3\n");
+        Path out = tmp.resolve("out");
+        expectFailure(2, out, List.of("survey.yaml", "physics.r_v", "mag_g", "R_V = 3.1"),
+                "derive", "--input", in.toString(), "--output", out.toString(), "--config", cfg.toString());
+        // without Gaia-like bands the same R_V is accepted (CCM takes any R_V)
+        assertEquals(0, CliRunner.run("derive", "--input", goodInput().toString(), "--output", tmp.resolve("out-rv").toString(),
+                "--config", cfg.toString()).exitCode);
+    }
+
+    @Test
     void unknownConfigKeyAndBadValue() throws IOException {
         Path in = goodInput();
         Path out = tmp.resolve("out");

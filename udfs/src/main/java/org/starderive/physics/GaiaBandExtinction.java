@@ -17,6 +17,12 @@ public final class GaiaBandExtinction {
 
     public static final String CITATION = "Casagrande et al. 2021, MNRAS 507, 2684 (Fitzpatrick 1999 law, Schlafly & Finkbeiner 2011 renormalisation)";
 
+    /**
+     * The R_V of the law these coefficients come from (the diffuse-ISM value of the Fitzpatrick 1999 law as used by
+     * Schlafly &amp; Finkbeiner 2011): they do not follow another R_V, so the job refuses a different r_v with these bands.
+     */
+    public static final double RV = 3.1;
+
     private static final int ITERATIONS = 4;
 
     public static double rG(double c) { return 2.609 + c * (-0.475 + c * 0.053); }
