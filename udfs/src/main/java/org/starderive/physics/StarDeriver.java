@@ -69,6 +69,8 @@ public final class StarDeriver {
     private final TeffEstimator estMain;
     private final TeffEstimator estAlt;
     private final TeffEstimator estM;
+    /** Whether estM and estHot hold this star's (or draw's) estimates. */
+    private boolean regimeEstimatesFresh;
     private final TeffEstimator estHot;
     private double v0;
     private boolean vObserved;
@@ -176,7 +178,6 @@ public final class StarDeriver {
         }
     }
 
-    /** z × σ of source {@code j} in a draw; 0 outside draws. */
     /**
      * The blend spreads (Teff, M_bol, ln M) of the star's nominal derivation: a Monte Carlo draw scales the nominal
      * spread by its z (a spread recomputed inside the draw would make the blend term quadratic in z).
@@ -191,6 +192,7 @@ public final class StarDeriver {
         return nominalSpread[k];
     }
 
+    /** z × σ of source {@code j} in a draw; 0 outside draws. */
     private double dz(int j, double sigma) {
         return drawZ == null ? 0.0 : drawZ[j] * sigma;
     }
@@ -198,6 +200,7 @@ public final class StarDeriver {
     /** Derives everything for {@code in} into {@code out} (cleared first) and returns {@code out}. */
     public StarResult derive(StarInput in, StarResult out) {
         out.clear();
+        regimeEstimatesFresh = false;
         long flags = 0;
         flags |= readPhotometry(in);
         flags |= readExtinction(in, out);
@@ -600,14 +603,17 @@ public final class StarDeriver {
                 f.tUpper = Math.min(f.tUpper, upper);
                 f.tLower = Math.max(f.tLower, lower);
             }
-            estM.clear();
         } else {
             f.estimate(Regime.FGK_DWARF, logg, sLogg, off, 0);
-            estM.estimate(Regime.M_DWARF, logg, sLogg, off, Regime.M_BLEND_HI_K);
         }
-        estHot.estimate(Regime.HOT, logg, sLogg, off, 0);
+        // the M-dwarf (Mann) and hot (Flower) relations take no log g: once per star (or draw) is enough
+        if (!regimeEstimatesFresh) {
+            estM.estimate(Regime.M_DWARF, logg, sLogg, off, Regime.M_BLEND_HI_K);
+            estHot.estimate(Regime.HOT, logg, sLogg, off, 0);
+            regimeEstimatesFresh = true;
+        }
         Regime fRegime = cls == LuminosityClass.EVOLVED && (f.mask & giantMask()) != 0 ? Regime.GIANT : Regime.FGK_DWARF;
-        blend(f, fRegime);
+        blend(f, fRegime, cls != LuminosityClass.EVOLVED);
     }
 
     private long giantMaskCache = -1;
@@ -627,21 +633,21 @@ public final class StarDeriver {
     }
 
     /** Blends the main (FGK or giant), M-dwarf and hot estimates with the regime weights. */
-    private void blend(TeffEstimator f, Regime fRegime) {
+    private void blend(TeffEstimator f, Regime fRegime, boolean withM) {
         TeffEstimator m = estM;
         TeffEstimator h = estHot;
-        double wm = m.n > 0 ? Regime.mDwarfWeight(m.mean) : 0;
+        double wm = withM && m.n > 0 ? Regime.mDwarfWeight(m.mean) : 0;
         double wh = h.n > 0 ? Regime.hotWeight(h.mean) : 0;
         double wf = f.n > 0 ? 1 - wm - wh : 0;
         if (wf < 0) {
             wf = 0;
         }
         double sum = wf + wm + wh;
-        tAnyColour = f.anyColour || m.anyColour || h.anyColour;
+        tAnyColour = f.anyColour || (withM && m.anyColour) || h.anyColour;
         tUsesLogg = f.usesLogg && wf > 0;
         // bounds from colours beyond an edge: the M relations bound only from the red side, the hot one only from the
         // blue side (their other edges are where another regime takes over, not where the star's colour says stop)
-        double upper = Math.min(f.tUpper, m.tUpper);
+        double upper = withM ? Math.min(f.tUpper, m.tUpper) : f.tUpper;
         double lower = Math.max(f.tLower, h.tLower);
         if (!(sum > 0)) {
             tMean = tErr = tChi2 = Double.NaN;

@@ -28,6 +28,8 @@ final class TeffEstimator {
     private final double[] wEst;
     private final double[] gradBand = new double[Band.COUNT];
     private final boolean[] groupUsed;
+    /** Indices of the relations of each regime (by ordinal), in list order. */
+    private final int[][] byRegime = new int[Regime.values().length][];
 
     // result
     double mean;
@@ -60,6 +62,20 @@ final class TeffEstimator {
                     break;
                 }
             }
+        }
+        for (Regime g : Regime.values()) {
+            int count = 0;
+            for (TeffRelation r : relations) {
+                count += r.regime() == g ? 1 : 0;
+            }
+            int[] idx = new int[count];
+            int i = 0;
+            for (int k = 0; k < relations.length; k++) {
+                if (relations[k].regime() == g) {
+                    idx[i++] = k;
+                }
+            }
+            byRegime[g.ordinal()] = idx;
         }
     }
 
@@ -97,10 +113,12 @@ final class TeffEstimator {
         Arrays.fill(groupUsed, false);
         int ji = Band.J.ordinal();
         int hi = Band.H.ordinal();
-        for (int k = 0; k < relations.length; k++) {
+        int[] ofRegime = byRegime[regime.ordinal()];
+        for (int kk = 0; kk < ofRegime.length; kk++) {
+            int k = ofRegime[kk];
             TeffRelation r = relations[k];
-            if (r.regime() != regime || alreadyUsed(k)) {
-                continue;
+            if (groupUsed[groupIds[k]]) {
+                continue; // another form of this colour is already used
             }
             int bi = r.blue().ordinal();
             int ri = r.red().ordinal();
@@ -142,7 +160,7 @@ final class TeffEstimator {
             if (!(t >= TEFF_SANE_MIN_K && t <= TEFF_SANE_MAX_K)) {
                 continue;
             }
-            groupUsed[k] = true;
+            groupUsed[groupIds[k]] = true;
             double dx = r.dTeffDColour(x, feh, logg, aux);
             double sr = r.scatterK(t);
             double w = 1 / (dx * dx * sx2 + sr * sr);
@@ -189,14 +207,5 @@ final class TeffEstimator {
             x2 += wEst[i] * sq(tEst[i] - mean);
         }
         chi2 = x2;
-    }
-
-    private boolean alreadyUsed(int k) {
-        for (int i = 0; i < k; i++) {
-            if (groupUsed[i] && groupIds[i] == groupIds[k]) {
-                return true;
-            }
-        }
-        return false;
     }
 }
