@@ -136,33 +136,39 @@ public final class TeffRelation {
 
     /** Teff in K; {@code aux} is the dereddened J−H colour for a {@link Aux#JH} form (ignored otherwise). */
     public double teff(double x, double feh, double logg, double aux) {
+        // one small method per form, so that the JIT inlines the one a hot loop uses
         double f = Math.max(feh, fehEvalFloor);
         switch (form) {
-            case THETA: {
-                double theta = c[0] + x * (c[1] + c[2] * x) + c[3] * x * f + f * (c[4] + c[5] * f);
-                return theta > 0 ? 5040.0 / theta : Double.NaN;
-            }
-            case MANN2015: {
-                double p = c[0] + x * (c[1] + x * (c[2] + x * (c[3] + x * c[4])));
-                if (this.aux == Aux.FEH) {
-                    p += c[5] * f;
-                } else if (this.aux == Aux.JH) {
-                    p += aux * (c[5] + c[6] * aux);
-                }
-                return 3500.0 * p;
-            }
-            case FLOWER1996:
-                return Math.pow(10, poly(c, x));
-            default: {
-                double x2 = x * x;
-                double x3 = x2 * x;
-                double x5 = x3 * x2;
-                return c[0] + c[1] * x + c[2] * x2 + c[3] * x3 + c[4] * x5
-                        + logg * (c[5] + c[6] * x + c[7] * x2 + c[8] * x3 + c[9] * x5)
-                        + f * (c[10] + c[11] * x + c[12] * x2 + c[13] * x3)
-                        + c[14] * f * logg * x;
-            }
+            case THETA: return thetaTeff(x, f);
+            case MANN2015: return mannTeff(x, f, aux);
+            case FLOWER1996: return Math.pow(10, poly(c, x));
+            default: return gaiaTeff(x, f, logg);
         }
+    }
+
+    private double thetaTeff(double x, double f) {
+        double theta = c[0] + x * (c[1] + c[2] * x) + c[3] * x * f + f * (c[4] + c[5] * f);
+        return theta > 0 ? 5040.0 / theta : Double.NaN;
+    }
+
+    private double mannTeff(double x, double f, double auxValue) {
+        double p = c[0] + x * (c[1] + x * (c[2] + x * (c[3] + x * c[4])));
+        if (aux == Aux.FEH) {
+            p += c[5] * f;
+        } else if (aux == Aux.JH) {
+            p += auxValue * (c[5] + c[6] * auxValue);
+        }
+        return 3500.0 * p;
+    }
+
+    private double gaiaTeff(double x, double f, double logg) {
+        double x2 = x * x;
+        double x3 = x2 * x;
+        double x5 = x3 * x2;
+        return c[0] + c[1] * x + c[2] * x2 + c[3] * x3 + c[4] * x5
+                + logg * (c[5] + c[6] * x + c[7] * x2 + c[8] * x3 + c[9] * x5)
+                + f * (c[10] + c[11] * x + c[12] * x2 + c[13] * x3)
+                + c[14] * f * logg * x;
     }
 
     private static double poly(double[] k, double x) {
@@ -188,22 +194,28 @@ public final class TeffRelation {
             }
             case MANN2015:
                 return 3500.0 * (c[1] + x * (2 * c[2] + x * (3 * c[3] + x * 4 * c[4])));
-            case FLOWER1996: {
-                double d = 0;
-                for (int i = c.length - 1; i >= 1; i--) {
-                    d = d * x + i * c[i];
-                }
-                return teff(x, feh, logg, aux) * Math.log(10) * d;
-            }
-            default: {
-                double x2 = x * x;
-                double x4 = x2 * x2;
-                return c[1] + 2 * c[2] * x + 3 * c[3] * x2 + 5 * c[4] * x4
-                        + logg * (c[6] + 2 * c[7] * x + 3 * c[8] * x2 + 5 * c[9] * x4)
-                        + f * (c[11] + 2 * c[12] * x + 3 * c[13] * x2)
-                        + c[14] * f * logg;
-            }
+            case FLOWER1996:
+                return flowerSlope(x, f, logg, aux);
+            default:
+                return gaiaSlope(x, f, logg);
         }
+    }
+
+    private double flowerSlope(double x, double f, double logg, double aux) {
+        double d = 0;
+        for (int i = c.length - 1; i >= 1; i--) {
+            d = d * x + i * c[i];
+        }
+        return teff(x, f, logg, aux) * Math.log(10) * d;
+    }
+
+    private double gaiaSlope(double x, double f, double logg) {
+        double x2 = x * x;
+        double x4 = x2 * x2;
+        return c[1] + 2 * c[2] * x + 3 * c[3] * x2 + 5 * c[4] * x4
+                + logg * (c[6] + 2 * c[7] * x + 3 * c[8] * x2 + 5 * c[9] * x4)
+                + f * (c[11] + 2 * c[12] * x + 3 * c[13] * x2)
+                + c[14] * f * logg;
     }
 
     /** ∂Teff/∂(J−H) in K per mag for a {@link Aux#JH} form, 0 otherwise. */
