@@ -1,5 +1,6 @@
 package org.starderive.physics;
 
+import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 import static org.starderive.physics.QualityFlag.*;
 
@@ -98,5 +99,38 @@ class StarDeriverPropertyTest {
             assertTrue(withTeff > 5_000, "stars with Teff: " + withTeff);
             assertTrue(withMass > 500, "stars with mass: " + withMass);
         }
+    }
+
+    /**
+     * Every reported field comes from the final Teff estimate, whatever path the class/Teff loop took (it once could
+     * stop at its cap right after a re-estimate, leaving L and R from the previous one): on random Gaia-band stars,
+     * R must equal √L (Teff⊙/Teff)² from the reported L and Teff (Stefan–Boltzmann, IAU 2015 B3 nominal Teff⊙).
+     */
+    @Test
+    void radiusLuminosityAndTeffAreFromOneEstimate() {
+        StarDeriver d = new StarDeriver(DeriveSettings.defaults());
+        StarResult r = new StarResult();
+        StarInput in = new StarInput();
+        SplittableRandom rnd = new SplittableRandom(2026);
+        int checked = 0;
+        for (int k = 0; k < 200_000; k++) {
+            in.clear();
+            double g = 8 + 10 * rnd.nextDouble();
+            double bpRp = -0.2 + 4 * rnd.nextDouble();
+            in.parallax(0.2 + 20 * rnd.nextDouble(), 0.01 + 0.1 * rnd.nextDouble())
+                    .magnitude(Band.G, g, 0.002).magnitude(Band.BP, g + 0.4 * bpRp, 0.003)
+                    .magnitude(Band.RP, g - 0.6 * bpRp, 0.003)
+                    .magnitude(Band.KS, g - 1.2 * bpRp - rnd.nextDouble(), 0.02).ebv(0.3 * rnd.nextDouble(), 0.02);
+            if (rnd.nextBoolean()) {
+                in.magnitude(Band.J, g - 0.9 * bpRp - 0.5 * rnd.nextDouble(), 0.02);
+            }
+            d.derive(in, r);
+            if (r.teffK > 0 && r.lumLsun > 0 && r.radiusRsun > 0) {
+                double expected = Math.sqrt(r.lumLsun) * Math.pow(Iau2015.TEFF_SUN_K / r.teffK, 2);
+                assertEquals(expected, r.radiusRsun, 1e-9 * expected, "star " + k + ": " + r.teffFrom());
+                checked++;
+            }
+        }
+        assertTrue(checked > 50_000, "stars checked: " + checked);
     }
 }
