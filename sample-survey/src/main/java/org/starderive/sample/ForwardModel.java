@@ -243,8 +243,7 @@ public final class ForwardModel {
         double bprp;
         if (!Double.isNaN(mKs)) {
             s.regime = teff >= MANN_TEFF_MIN_K && mKs <= MANN_RADIUS_MKS_MAX ? "m_dwarf" : "none";
-            mDwarfMagnitudes(teff, feh, mKs, rng, g);
-            bprp = lastBpRp;
+            bprp = mDwarfMagnitudes(teff, feh, mKs, rng, g);
         } else {
             if (giant) {
                 s.regime = "giant";
@@ -427,16 +426,15 @@ public final class ForwardModel {
         return (1 - w) * c10 + w * f96;
     }
 
-    private double lastBpRp;
-
     /**
      * Absolute magnitudes of an M dwarf from its absolute Ks and Teff: J−H and H−Ks from our own approximation
      * (J−H = 0.60 + 1.2·10⁻⁴ (Teff − 3400 K) + 0.1 [Fe/H], H−Ks = 0.22 + 10⁻⁴ (3900 K − Teff), both clipped; near
      * what M dwarfs show, not a calibration), V−J and V−I_C from the Mann et al. 2015 J−H forms, BP−RP from their
      * plain form, each run backwards at Teff offset by the relation's scatter with the table note's 60 K (and the
      * job's extra 100 K for BP−RP) in quadrature; B−V and V−R_C from our approximations (outside every relation).
+     * Returns the intrinsic BP−RP (G, BP and RP follow from V with it).
      */
-    private void mDwarfMagnitudes(double teff, double feh, double mKs, UniformRandomProvider rng,
+    private double mDwarfMagnitudes(double teff, double feh, double mKs, UniformRandomProvider rng,
                                   ZigguratSampler.NormalizedGaussian g) {
         double jh = Math.max(0.45, Math.min(0.75, 0.60 + 1.2e-4 * (teff - 3400) + 0.1 * feh));
         double hk = Math.max(0.15, Math.min(0.40, 0.22 + 1e-4 * (3900 - teff)));
@@ -446,7 +444,7 @@ public final class ForwardModel {
         double tb = teff + Math.sqrt(M15_BPRP_SIG * M15_BPRP_SIG + sysK * sysK + 100 * 100) * g.sample();
         double vj = ColourInversion.colour(x -> mannTeff(M15_VJ_JH, x, jh), 1.8, MANN_VJ_TURN, tj);
         double vi = ColourInversion.colour(x -> mannTeff(M15_VI_JH, x, jh), 1.0, MANN_VI_TURN, ti);
-        lastBpRp = ColourInversion.colour(x -> mannTeff(M15_BPRP, x, 0), 1.2, MANN_BPRP_TURN, tb);
+        double bpRp = ColourInversion.colour(x -> mannTeff(M15_BPRP, x, 0), 1.2, MANN_BPRP_TURN, tb);
         double ks = mKs;
         double h = ks + hk;
         double j = h + jh;
@@ -458,6 +456,7 @@ public final class ForwardModel {
         absMag[Band.IC.ordinal()] = v - vi;
         absMag[Band.RC.ordinal()] = v - (0.45 * vi + 0.05);
         absMag[Band.B.ordinal()] = v + Math.min(2.0, 1.40 + 2.5e-4 * Math.max(0, 4100 - teff));
+        return bpRp;
     }
 
     /** Where a Mann polynomial stops falling with colour (its red turnover, near 2800 K), found by a scan. */
