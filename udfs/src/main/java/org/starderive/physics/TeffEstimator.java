@@ -25,8 +25,15 @@ final class TeffEstimator {
     private final int[] groupIds;
     private final boolean allowExtrapolation;
     private final double[] tEst;
-    private final double[] wEst;
     private final double[] gradBand = new double[Band.COUNT];
+    /** Per used estimate: its first-order contribution from each shared measurement (bands, E(B−V), [Fe/H]). */
+    private final double[][] shared;
+    /** Per used estimate: its relation's own scatter, squared (independent between relations). */
+    private final double[] ownVar;
+    /** Covariance matrix of the used estimates (row-major, n × n), factorised in place. */
+    private final double[] cov;
+    private final double[] resid;
+    private final double[] ones;
     private final boolean[] groupUsed;
     /** Indices of the relations of each regime (by ordinal), in list order. */
     private final int[][] byRegime = new int[Regime.values().length][];
@@ -51,9 +58,13 @@ final class TeffEstimator {
         this.relationIndex = relationIndex;
         this.allowExtrapolation = allowExtrapolation;
         this.tEst = new double[relations.length];
-        this.wEst = new double[relations.length];
         this.groupIds = new int[relations.length];
         this.groupUsed = new boolean[relations.length];
+        this.shared = new double[relations.length][ErrorSource.COUNT];
+        this.ownVar = new double[relations.length];
+        this.cov = new double[relations.length * relations.length];
+        this.resid = new double[relations.length];
+        this.ones = new double[relations.length];
         for (int k = 0; k < relations.length; k++) {
             groupIds[k] = k;
             for (int i = 0; i < k; i++) {
@@ -77,6 +88,62 @@ final class TeffEstimator {
             }
             byRegime[g.ordinal()] = idx;
         }
+    }
+
+    /**
+     * χ² of the estimates with the full covariance: colours that share a band (V in B−V, V−J, V−Ks), the common
+     * E(B−V) and [Fe/H] make their errors correlated, so χ² = min over μ of (t − μ1)ᵀ C⁻¹ (t − μ1) with
+     * C_ij = Σ_s g_is g_js + δ_ij σ_i² (g: contributions of the shared measurements, σ_i: relation scatter) — the
+     * generalised least-squares χ², which follows χ² with n − 1 degrees of freedom (common practice). With C = L Lᵀ
+     * (Cholesky, in preallocated arrays), a = L⁻¹t and b = L⁻¹1: χ² = |a|² − (a·b)² / |b|². NaN if C is not positive
+     * definite or an input is NaN. Temperatures are taken about the mean to keep the arithmetic well conditioned.
+     */
+    private double correlatedChi2() {
+        int m = n;
+        for (int i = 0; i < m; i++) {
+            for (int j = 0; j <= i; j++) {
+                double c = i == j ? ownVar[i] : 0;
+                double[] gi = shared[i];
+                double[] gj = shared[j];
+                for (int q = 0; q < gi.length; q++) {
+                    c += gi[q] * gj[q];
+                }
+                cov[i * m + j] = c;
+            }
+        }
+        for (int i = 0; i < m; i++) { // Cholesky C = L Lᵀ, L in the lower triangle
+            for (int j = 0; j <= i; j++) {
+                double sum = cov[i * m + j];
+                for (int k = 0; k < j; k++) {
+                    sum -= cov[i * m + k] * cov[j * m + k];
+                }
+                if (i == j) {
+                    if (!(sum > 0)) {
+                        return Double.NaN;
+                    }
+                    cov[i * m + i] = Math.sqrt(sum);
+                } else {
+                    cov[i * m + j] = sum / cov[j * m + j];
+                }
+            }
+        }
+        double aa = 0;
+        double ab = 0;
+        double bb = 0;
+        for (int i = 0; i < m; i++) { // forward substitution for a (in resid) and b (in ones)
+            double sa = tEst[i] - mean;
+            double sb = 1;
+            for (int k = 0; k < i; k++) {
+                sa -= cov[i * m + k] * resid[k];
+                sb -= cov[i * m + k] * ones[k];
+            }
+            resid[i] = sa / cov[i * m + i];
+            ones[i] = sb / cov[i * m + i];
+            aa += resid[i] * resid[i];
+            ab += resid[i] * ones[i];
+            bb += ones[i] * ones[i];
+        }
+        return Math.max(0, aa - ab * ab / bb);
     }
 
     void clear() {
@@ -165,7 +232,21 @@ final class TeffEstimator {
             double sr = r.scatterK(t);
             double w = 1 / (dx * dx * sx2 + sr * sr);
             tEst[n] = t;
-            wEst[n] = w;
+            if (!s.valuesOnly) {
+                double[] g = shared[n];
+                Arrays.fill(g, 0);
+                g[bi] += dx * sm[bi];
+                g[ri] -= dx * sm[ri];
+                g[ErrorSource.EBV] -= dx * (rBand[bi] - rBand[ri]) * s.sEbv;
+                if (r.aux() == TeffRelation.Aux.JH) {
+                    double da = r.dTeffDAux(aux);
+                    g[ji] += da * sm[ji];
+                    g[hi] -= da * sm[hi];
+                    g[ErrorSource.EBV] -= da * (rBand[ji] - rBand[hi]) * s.sEbv;
+                }
+                g[ErrorSource.FEH] = r.dTeffDFeh(x, feh, logg) * s.sFeh;
+                ownVar[n] = sr * sr;
+            }
             n++;
             sumW += w;
             sumWT += w * t;
@@ -202,10 +283,6 @@ final class TeffEstimator {
         c[ErrorSource.SCATTER] = Math.sqrt(scatterVar) / sumW;
         c[ErrorSource.ZP] = sumWZp / sumW;
         s.mask(c);
-        double x2 = 0;
-        for (int i = 0; i < n; i++) {
-            x2 += wEst[i] * sq(tEst[i] - mean);
-        }
-        chi2 = x2;
+        chi2 = correlatedChi2();
     }
 }
