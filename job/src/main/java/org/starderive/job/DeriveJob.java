@@ -45,6 +45,8 @@ public final class DeriveJob {
         public Map<String, Long> rowsPerFlag = new LinkedHashMap<>();
         public List<String> partitionsReplaced = new ArrayList<>();
         public String runId;
+        /** Seconds of the commit itself (after the manifest was written, so not in it). */
+        public double commitSeconds;
 
         public String render() {
             StringBuilder sb = new StringBuilder();
@@ -82,7 +84,19 @@ public final class DeriveJob {
         OutputCommitter committer = new OutputCommitter(hconf, req.output, runId, req.writeMode);
         List<String> allInputs = new ArrayList<>(req.input);
         allInputs.addAll(req.photometry);
-        committer.prepare(allInputs, hconf);
+        try {
+            committer.prepare(allInputs, hconf, config.leaseStaleAfterS());
+            seconds.put("take_lease", committer.leaseSeconds());
+            seconds.put("check_output", (System.nanoTime() - t0) / 1e9);
+            return runHoldingLease(spark, req, config, committer, runId, t0, seconds);
+        } finally {
+            committer.release();
+        }
+    }
+
+    private static Summary runHoldingLease(SparkSession spark, Request req, JobConfig config, OutputCommitter committer,
+                                           String runId, long t0, Map<String, Double> seconds) {
+        Configuration hconf = spark.sparkContext().hadoopConfiguration();
 
         String idColumn = req.joinOn != null ? req.joinOn : config.idColumn();
         DerivePipeline pipeline = new DerivePipeline(config, idColumn);
@@ -186,14 +200,66 @@ public final class DeriveJob {
             facts.put("partition_columns", partitionColumns);
             facts.put("finished_utc", Instant.now().toString());
             seconds.put("total_before_commit", (System.nanoTime() - t0) / 1e9);
+            facts.put("history", history(req, committer, facts, partitionColumns, s.rowsOut));
             committer.writeText(DataDictionary.FILE_NAME, DataDictionary.render(derived.schema(), idColumn));
             committer.writeText(RunManifest.FILE_NAME, RunManifest.render(req, config, facts, s.rowsPerFlag, seconds));
+            long tc = System.nanoTime();
             s.partitionsReplaced = committer.commit(partitionColumns);
+            s.commitSeconds = (System.nanoTime() - tc) / 1e9;
+            LOG.info("Committed {} in {} s (lease taken in {} s)", committer.output(), s.commitSeconds, committer.leaseSeconds());
             s.seconds = (System.nanoTime() - t0) / 1e9;
             return s;
         } catch (RuntimeException e) {
             committer.abort();
             throw e;
         }
+    }
+
+    /**
+     * The output's history, one entry per run that wrote it: with replace-partitions the previous manifest's entries
+     * (or, for a manifest from before histories, one entry made from its run) plus this run's with the partitions it
+     * replaced; otherwise this run's alone (the whole output is new).
+     */
+    static List<Map<String, Object>> history(Request req, OutputCommitter committer, Map<String, Object> facts,
+                                             List<String> partitionColumns, long rowsOut) {
+        List<Map<String, Object>> h = new ArrayList<>();
+        boolean partial = req.writeMode == OutputCommitter.Mode.REPLACE_PARTITIONS;
+        if (partial) {
+            String prev = committer.previousManifest();
+            if (prev != null) {
+                try {
+                    com.fasterxml.jackson.databind.JsonNode root = new com.fasterxml.jackson.databind.ObjectMapper().readTree(prev);
+                    com.fasterxml.jackson.databind.JsonNode old = root.get("history");
+                    com.fasterxml.jackson.databind.ObjectMapper m = new com.fasterxml.jackson.databind.ObjectMapper();
+                    if (old != null && old.isArray()) {
+                        for (com.fasterxml.jackson.databind.JsonNode e : old) {
+                            h.add(m.convertValue(e, new com.fasterxml.jackson.core.type.TypeReference<Map<String, Object>>() {}));
+                        }
+                    } else {
+                        Map<String, Object> e = new LinkedHashMap<>();
+                        e.put("run_id", root.path("run_id").asText(null));
+                        e.put("started_utc", root.path("started_utc").asText(null));
+                        e.put("finished_utc", root.path("finished_utc").asText(null));
+                        e.put("write_mode", root.path("request").path("write_mode").asText(null));
+                        e.put("partitions_written", "all");
+                        h.add(e);
+                    }
+                } catch (java.io.IOException e) {
+                    throw JobException.output("Output " + committer.output() + ": its manifest cannot be read as JSON ("
+                            + e.getMessage() + ") (rule: replace-partitions extends the output's history)");
+                }
+            }
+        }
+        Map<String, Object> mine = new LinkedHashMap<>();
+        mine.put("run_id", facts.get("run_id"));
+        mine.put("started_utc", facts.get("started_utc"));
+        mine.put("finished_utc", facts.get("finished_utc"));
+        mine.put("write_mode", req.writeMode.label());
+        mine.put("input", req.input);
+        mine.put("output_rows", rowsOut);
+        mine.put("partitions_written", partitionColumns.isEmpty() ? List.of()
+                : committer.stagedPartitions(partitionColumns.size()));
+        h.add(mine);
+        return h;
     }
 }

@@ -50,6 +50,7 @@ import org.yaml.snakeyaml.events.ScalarEvent;
  *   ...
  * output:
  *   compression: snappy           # snappy | zstd | gzip | none
+ *   lease_stale_after_s: 120      # a run's lease on its output not renewed this long is taken over
  * </pre>
  */
 public final class JobConfig {
@@ -127,7 +128,7 @@ public final class JobConfig {
             "bands", "ebv", "ebv_err", "av", "feh", "feh_err");
     private static final Set<String> BAND_KEYS = Set.of("mag", "err", "err_value");
     private static final Set<String> SOURCE_KEYS = Set.of("column", "value");
-    private static final Set<String> OUTPUT_KEYS = Set.of("compression");
+    private static final Set<String> OUTPUT_KEYS = Set.of("compression", "lease_stale_after_s");
     private static final Set<String> COMPRESSIONS = Set.of("snappy", "zstd", "gzip", "none");
     /** physics keys, each one line of DeriveSettings. */
     private static final Set<String> PHYSICS_KEYS = Set.of("parallax_zero_point_mas", "parallax_snr_min",
@@ -149,6 +150,7 @@ public final class JobConfig {
     private final Source fehErr;
     private final DeriveSettings settings;
     private final String compression;
+    private final double leaseStaleAfterS;
     private final JsonNode resolved;
     private String uncertaintyMethod;
     private int draws;
@@ -217,6 +219,11 @@ public final class JobConfig {
         compression = text(out, KEY_OUTPUT, "compression", COMPRESSION_DEFAULT);
         if (!COMPRESSIONS.contains(compression)) {
             throw bad(KEY_OUTPUT + ".compression", compression, "must be one of " + new TreeSet<>(COMPRESSIONS));
+        }
+        leaseStaleAfterS = number(out, KEY_OUTPUT, "lease_stale_after_s", OutputLease.STALE_AFTER_S_DEFAULT);
+        if (!(leaseStaleAfterS >= 10 && leaseStaleAfterS <= 86_400)) {
+            throw bad(KEY_OUTPUT + ".lease_stale_after_s", String.valueOf(leaseStaleAfterS),
+                    "must be 10 to 86400 s (a lease not renewed for this long is taken over)");
         }
         JsonNode u = object(root, KEY_UNCERTAINTY);
         checkKeys(u, KEY_UNCERTAINTY, UNCERTAINTY_KEYS);
@@ -465,6 +472,9 @@ public final class JobConfig {
     public DeriveSettings settings() { return settings; }
     public String compression() { return compression; }
 
+    /** Seconds without renewal after which another run's lease on the output is stale (see {@link OutputLease}). */
+    public double leaseStaleAfterS() { return leaseStaleAfterS; }
+
     /** The configuration as read, with every default filled in, for the run manifest. */
     public ObjectNode resolvedForManifest(ObjectMapper m) {
         ObjectNode n = m.createObjectNode();
@@ -494,6 +504,7 @@ public final class JobConfig {
         s.put("mag_max", d.magMax());
         s.put("parallax_unit", parallaxUnit.name().toLowerCase());
         s.put("compression", compression);
+        s.put("lease_stale_after_s", leaseStaleAfterS);
         ObjectNode un = n.putObject("uncertainty_resolved");
         un.put("method", uncertaintyMethod);
         if (monteCarlo()) {

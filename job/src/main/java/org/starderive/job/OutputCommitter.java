@@ -1,31 +1,48 @@
 package org.starderive.job;
 
 import java.io.IOException;
+import java.nio.charset.StandardCharsets;
 import java.util.ArrayList;
+import java.util.Arrays;
 import java.util.Comparator;
 import java.util.List;
 import java.util.Locale;
 import org.apache.hadoop.conf.Configuration;
+import org.apache.hadoop.fs.FileContext;
 import org.apache.hadoop.fs.FileStatus;
 import org.apache.hadoop.fs.FileSystem;
+import org.apache.hadoop.fs.Options;
 import org.apache.hadoop.fs.Path;
 import org.slf4j.Logger;
 import org.slf4j.LoggerFactory;
 
 /**
- * Writes go to a staging folder beside the output ({@code NAME.staging-RUNID}, same file system) and are moved
- * into place only after the whole output has been written and checked:
+ * Writes go to a staging folder beside the output ({@code NAME.staging-RUNID}, same file system) and are moved into
+ * place only after the whole output has been written and checked, while the run holds the output's
+ * {@link OutputLease}:
  * <ul>
- *   <li>{@code fail}: the output must not exist; the staging folder is renamed to it;</li>
- *   <li>{@code overwrite}: the old output is renamed aside ({@code .NAME.previous-RUNID}), the staging folder renamed
- *       into place, then the old one deleted. Should the process die between the two renames, the next run finds no
- *       output but a previous copy and restores it before doing anything else;</li>
- *   <li>{@code replace-partitions}: only the partition folders present in the new output are swapped the same way,
- *       one by one; every other partition is left untouched (same files, same bytes).</li>
+ *   <li>{@code fail}: the output must not exist — checked when the run starts and again at the commit;</li>
+ *   <li>{@code overwrite}: the old output is moved aside ({@code .NAME.previous-RUNID}), the staged one moved in;</li>
+ *   <li>{@code replace-partitions}: only the partition folders present in the new output are swapped the same way, one
+ *       by one (the old ones go to {@code .NAME.previous-RUNID/KEY=VALUE}); every other partition is left untouched
+ *       (same files, same bytes).</li>
  * </ul>
- * A run that fails or is killed before the commit leaves the output as it was (the staging folder is deleted on a
- * clean failure; after a kill it stays beside the output under its own name and is never read as the output). On object stores without atomic
- * rename (S3) the rename is a copy: the guarantee then holds only per file.
+ *
+ * <p><b>Journal.</b> Before the first move the commit writes its plan — every move and folder creation, in order — to
+ * {@code .NAME.commit-RUNID.json} beside the output; deleting that journal after the last move is the commit point.
+ * A run that dies during the commit leaves its journal; the next run (holding the lease) undoes the plan's steps in
+ * reverse, partition by partition, so the output is the previous one again before it does anything else. A commit
+ * that fails in-process (a refused rename, a lost lease) is undone the same way at once.
+ *
+ * <p><b>The manifest is moved last.</b> The old output's manifest is moved aside first and the new one moved in last,
+ * so on every file system an output folder that holds {@code _starderive_manifest.json} is complete (the previous one
+ * or the new one), and one without it is in the middle of a commit. Moves use {@link FileContext#rename} without the
+ * overwrite option: they refuse an existing target instead of replacing it, or (for folders on the local file system)
+ * nesting the source inside it.
+ *
+ * <p><b>Object stores</b> (S3, GCS) rename by copy then delete: a reader during the commit may see the output partly
+ * moved (never with the new manifest before the last data file); the journal still lets the next run put the previous
+ * output back after a crash.
  */
 public final class OutputCommitter {
     private static final Logger LOG = LoggerFactory.getLogger(OutputCommitter.class);
@@ -46,13 +63,20 @@ public final class OutputCommitter {
         public String label() { return name().toLowerCase(Locale.ROOT).replace('_', '-'); }
     }
 
+    /** Name of the manifest, moved last. */
+    static final String MANIFEST = RunManifest.FILE_NAME;
+
+    private final Configuration conf;
     private final FileSystem fs;
     private final Path output;
     private final Path staging;
     private final String runId;
     private final Mode mode;
+    private OutputLease lease;
+    private double leaseSeconds;
 
     public OutputCommitter(Configuration conf, String output, String runId, Mode mode) {
+        this.conf = conf;
         try {
             Path p = new Path(output);
             this.fs = p.getFileSystem(conf);
@@ -73,16 +97,23 @@ public final class OutputCommitter {
 
     public Path staging() { return staging; }
 
-    private Path previous(Path p) {
-        return new Path(p.getParent(), "." + p.getName() + ".previous-" + runId);
+    FileSystem fileSystem() { return fs; }
+
+    private Path aside() { return new Path(output.getParent(), "." + output.getName() + ".previous-" + runId); }
+
+    private Path manifestAside(String which) {
+        return new Path(output.getParent(), "." + output.getName() + ".manifest-" + runId + "-" + which);
     }
 
+    private Path journal() { return new Path(output.getParent(), "." + output.getName() + ".commit-" + runId + ".json"); }
+
     /**
-     * Checks made before anything is computed: output not inside any input (nor the reverse), the mode's rule on an
-     * existing output, and that the staging folder can be created (writable location). Restores an output left aside
-     * by a run that died mid-commit.
+     * Takes the output's lease (refusing with exit 4 when another run holds it), then makes the checks that come
+     * before anything is computed: output not inside any input (nor the reverse), the mode's rule on an existing
+     * output, and that the staging folder can be created (writable location). Undoes a commit that a killed run left
+     * half done, and removes what completed commits left aside.
      */
-    public void prepare(List<String> inputPaths, Configuration conf) {
+    public void prepare(List<String> inputPaths, Configuration conf, double leaseStaleAfterS) {
         String out = output.toUri().getPath();
         for (String in : inputPaths) {
             String ip;
@@ -101,8 +132,11 @@ public final class OutputCommitter {
                         + " (rule: the output must not contain an input path)");
             }
         }
+        long tl = System.nanoTime();
+        lease = OutputLease.acquire(fs, output, runId, leaseStaleAfterS);
+        leaseSeconds = (System.nanoTime() - tl) / 1e9;
         try {
-            restoreInterruptedCommit();
+            recover();
             FileStatus[] stale = fs.globStatus(new Path(output.getParent(), output.getName() + ".staging-*"));
             if (stale != null) {
                 for (FileStatus st : stale) {
@@ -127,73 +161,193 @@ public final class OutputCommitter {
         }
     }
 
-    private void restoreInterruptedCommit() throws IOException {
-        if (fs.exists(output) || !fs.exists(output.getParent())) {
-            return;
+    /** Seconds it took to take the lease. */
+    public double leaseSeconds() { return leaseSeconds; }
+
+    /** Holds the lease of this committer's run (for tests and for the job's own checks). */
+    public OutputLease lease() { return lease; }
+
+    /**
+     * Undoes every commit journal left beside the output (runs killed mid-commit), newest last, then deletes what
+     * completed commits left aside. Runs under the lease, so no other commit is in progress.
+     */
+    private void recover() throws IOException {
+        FileStatus[] journals = fs.globStatus(new Path(output.getParent(), "." + output.getName() + ".commit-*.json"));
+        if (journals != null && journals.length > 0) {
+            Arrays.sort(journals, Comparator.comparing(st -> st.getPath().getName()));
+            for (int i = journals.length - 1; i >= 0; i--) {
+                Path j = journals[i].getPath();
+                List<Step> plan = Step.parse(readText(j), j);
+                undo(plan, plan.size());
+                fs.delete(j, false);
+                LOG.warn("Output {}: undid the commit journalled in {} (its run died during the commit); the previous output is back",
+                        output, j);
+            }
         }
-        FileStatus[] aside = fs.globStatus(new Path(output.getParent(), "." + output.getName() + ".previous-*"));
-        if (aside == null || aside.length == 0) {
-            return;
+        if (!fs.exists(output) && fs.exists(output.getParent())) {
+            // an output folder moved aside with no journal: left by a version of the job before journals
+            FileStatus[] aside = fs.globStatus(new Path(output.getParent(), "." + output.getName() + ".previous-*"));
+            if (aside != null && aside.length > 0) {
+                FileStatus newest = Arrays.stream(aside).max(Comparator.comparingLong(FileStatus::getModificationTime)).get();
+                fileContext().rename(newest.getPath(), output, Options.Rename.NONE);
+                LOG.warn("Restored {} from {} (a previous run died during its commit)", output, newest.getPath());
+            }
         }
-        FileStatus newest = java.util.Arrays.stream(aside).max(Comparator.comparingLong(FileStatus::getModificationTime)).get();
-        if (!fs.rename(newest.getPath(), output)) {
-            throw JobException.output("Output " + output + ": a previous run died during its commit and " + newest.getPath()
-                    + " could not be restored");
+        for (String pattern : List.of(".previous-*", ".manifest-*", ".commit-*.json.tmp")) {
+            FileStatus[] left = fs.globStatus(new Path(output.getParent(), "." + output.getName() + pattern));
+            if (left != null) {
+                for (FileStatus st : left) {
+                    fs.delete(st.getPath(), true);
+                    LOG.info("Output {}: removed {} left by a completed commit", output, st.getPath());
+                }
+            }
         }
-        LOG.warn("Restored {} from {} (a previous run died during its commit)", output, newest.getPath());
     }
 
-    /** Moves the staged output into place according to the mode. Returns the partition folders replaced. */
-    public List<String> commit(List<String> partitionColumns) {
+    /** Partition folders of the staged output, relative to it ({@code tile=3}, {@code a=1/b=2}), in name order. */
+    public List<String> stagedPartitions(int depth) {
         try {
-            if (mode == Mode.REPLACE_PARTITIONS && fs.exists(output)) {
-                return commitPartitions(partitionColumns.size());
+            List<Path> leaves = new ArrayList<>();
+            collectLeaves(staging, depth, leaves);
+            String base = staging.toUri().getPath();
+            List<String> rel = new ArrayList<>();
+            for (Path leaf : leaves) {
+                rel.add(leaf.toUri().getPath().substring(base.length() + 1));
             }
-            Path aside = null;
-            if (fs.exists(output)) {
-                aside = previous(output);
-                rename(output, aside);
-            }
-            rename(staging, output);
-            if (aside != null) {
-                fs.delete(aside, true);
-            }
-            return List.of();
+            rel.sort(null);
+            return rel;
         } catch (IOException e) {
-            throw JobException.output("Output " + output + ": commit failed (" + e.getMessage() + ")");
+            throw JobException.output("Output " + output + ": cannot list " + staging + " (" + e.getMessage() + ")");
         }
     }
 
-    private List<String> commitPartitions(int depth) throws IOException {
-        List<Path> leaves = new ArrayList<>();
-        collectLeaves(staging, depth, leaves);
+    /** The previous output's manifest text, or null (none, or no output yet). Read under the lease. */
+    public String previousManifest() {
+        Path m = new Path(output, MANIFEST);
+        try {
+            return fs.exists(m) ? readText(m) : null;
+        } catch (IOException e) {
+            throw JobException.output("Output " + output + ": cannot read its manifest " + m + " (" + e.getMessage() + ")");
+        }
+    }
+
+    /**
+     * Moves the staged output into place according to the mode (see the class comment). Returns the partition
+     * folders replaced (replace-partitions only).
+     */
+    public List<String> commit(List<String> partitionColumns) {
+        lease.checkHeld();
+        List<Step> plan = new ArrayList<>();
         List<String> replaced = new ArrayList<>();
-        String base = staging.toUri().getPath();
-        for (Path leaf : leaves) {
-            String rel = leaf.toUri().getPath().substring(base.length() + 1);
-            Path target = new Path(output, rel);
-            fs.mkdirs(target.getParent());
-            Path aside = null;
-            if (fs.exists(target)) {
-                aside = previous(target);
-                rename(target, aside);
+        try {
+            boolean exists = fs.exists(output);
+            if (exists && mode == Mode.FAIL) {
+                throw JobException.output("Output " + output + " appeared while this run was writing it (rule: --write-mode "
+                        + "fail never replaces an output); nothing was committed");
             }
-            rename(leaf, target);
-            if (aside != null) {
-                fs.delete(aside, true);
+            if (mode == Mode.REPLACE_PARTITIONS && exists) {
+                replaced = planPartitions(partitionColumns.size(), plan);
+            } else {
+                if (exists) {
+                    if (fs.exists(new Path(output, MANIFEST))) {
+                        plan.add(Step.move(new Path(output, MANIFEST), manifestAside("old")));
+                    }
+                    plan.add(Step.move(output, aside()));
+                }
+                plan.add(Step.move(new Path(staging, MANIFEST), manifestAside("new")));
+                plan.add(Step.move(staging, output));
+                plan.add(Step.move(manifestAside("new"), new Path(output, MANIFEST)));
             }
-            replaced.add(rel);
+        } catch (IOException e) {
+            throw JobException.output("Output " + output + ": cannot plan the commit (" + e.getMessage() + "); nothing was committed");
         }
-        // top-level files (manifest, dictionary, _SUCCESS) replace the old ones
-        for (FileStatus st : fs.listStatus(staging)) {
-            if (st.isFile()) {
-                Path target = new Path(output, st.getPath().getName());
-                fs.delete(target, false);
-                rename(st.getPath(), target);
+        writeJournal(plan);
+        int done = 0;
+        boolean begun = false;
+        try {
+            for (Step s : plan) {
+                lease.checkHeld();
+                TestHooks.beforeCommitStep(done, s.describe());
+                begun = true;
+                apply(s);
+                begun = false;
+                done++;
             }
+        } catch (RuntimeException | IOException e) {
+            String why = e.getMessage();
+            // a move refused because its target exists never began: its target is not ours to remove
+            boolean partly = begun && !(e instanceof org.apache.hadoop.fs.FileAlreadyExistsException);
+            try {
+                undo(plan, partly ? done + 1 : done);
+                fs.delete(journal(), false);
+            } catch (IOException | RuntimeException u) {
+                throw JobException.output("Output " + output + ": commit failed at step " + (done + 1) + " of " + plan.size() + " ("
+                        + why + ") and could not be undone (" + u.getMessage() + "); the journal " + journal()
+                        + " stays, and the next run on this output puts the previous output back");
+            }
+            if (e instanceof JobException) {
+                throw (JobException) e;
+            }
+            throw JobException.output("Output " + output + ": commit failed at step " + (done + 1) + " of " + plan.size()
+                    + ", " + plan.get(done).describe() + " (" + why + "); undone: the previous output is intact");
         }
-        fs.delete(staging, true);
+        try {
+            fs.delete(journal(), false); // the commit point
+        } catch (IOException e) {
+            throw JobException.output("Output " + output + ": committed, but the journal " + journal() + " could not be removed ("
+                    + e.getMessage() + "); remove it by hand or the next run will undo this commit");
+        }
+        try {
+            fs.delete(aside(), true);
+            fs.delete(manifestAside("old"), false);
+            fs.delete(staging, true);
+        } catch (IOException e) {
+            LOG.warn("Output {}: committed; could not remove what was left aside ({}); the next run removes it", output, e.getMessage());
+        }
         return replaced;
+    }
+
+    private List<String> planPartitions(int depth, List<Step> plan) throws IOException {
+        List<String> rels = stagedPartitions(depth);
+        if (fs.exists(new Path(output, MANIFEST))) {
+            plan.add(Step.move(new Path(output, MANIFEST), manifestAside("old")));
+        }
+        java.util.Set<Path> made = new java.util.HashSet<>();
+        for (String rel : rels) {
+            Path target = new Path(output, rel);
+            Path leaf = new Path(staging, rel);
+            mkdirSteps(target.getParent(), made, plan);
+            if (fs.exists(target)) {
+                Path old = new Path(aside(), rel);
+                mkdirSteps(old.getParent(), made, plan);
+                plan.add(Step.move(target, old));
+            }
+            plan.add(Step.move(leaf, target));
+        }
+        // other top-level files (data dictionary, _SUCCESS) replace the old ones; the manifest comes last
+        for (FileStatus st : fs.listStatus(staging)) {
+            String n = st.getPath().getName();
+            if (st.isFile() && !n.equals(MANIFEST) && !n.endsWith(".crc")) {
+                Path target = new Path(output, n);
+                if (fs.exists(target)) {
+                    mkdirSteps(aside(), made, plan);
+                    plan.add(Step.move(target, new Path(aside(), n)));
+                }
+                plan.add(Step.move(st.getPath(), target));
+            }
+        }
+        plan.add(Step.move(new Path(staging, MANIFEST), new Path(output, MANIFEST)));
+        return rels;
+    }
+
+    /** Adds a mkdir step for each missing folder from the top down. */
+    private void mkdirSteps(Path dir, java.util.Set<Path> made, List<Step> plan) throws IOException {
+        if (made.contains(dir) || fs.exists(dir)) {
+            return;
+        }
+        mkdirSteps(dir.getParent(), made, plan);
+        made.add(dir);
+        plan.add(Step.mkdir(dir));
     }
 
     private void collectLeaves(Path dir, int depth, List<Path> out) throws IOException {
@@ -209,9 +363,62 @@ public final class OutputCommitter {
         }
     }
 
-    private void rename(Path from, Path to) throws IOException {
-        if (!fs.rename(from, to)) {
-            throw new IOException("rename " + from + " -> " + to + " refused");
+    private FileContext fileContext() throws IOException {
+        return FileContext.getFileContext(output.toUri(), conf);
+    }
+
+    private void apply(Step s) throws IOException {
+        if (s.op == Step.Op.MKDIR) {
+            if (!fs.mkdirs(s.to)) {
+                throw new IOException("cannot create folder " + s.to);
+            }
+            return;
+        }
+        // refuses an existing target (no replacing, no nesting a folder inside it)
+        fileContext().rename(s.from, s.to, Options.Rename.NONE);
+    }
+
+    /**
+     * Undoes the first {@code count} steps of a plan in reverse. A move is undone when its target exists and its source
+     * does not; a folder created by the plan is removed when empty. Steps never begun are left alone.
+     */
+    private void undo(List<Step> plan, int count) throws IOException {
+        for (int i = Math.min(count, plan.size()) - 1; i >= 0; i--) {
+            Step s = plan.get(i);
+            if (s.op == Step.Op.MKDIR) {
+                if (fs.exists(s.to) && fs.listStatus(s.to).length == 0) {
+                    fs.delete(s.to, false);
+                }
+                continue;
+            }
+            boolean toExists = fs.exists(s.to);
+            boolean fromExists = fs.exists(s.from);
+            if (toExists && !fromExists) {
+                fs.mkdirs(s.from.getParent());
+                fileContext().rename(s.to, s.from, Options.Rename.NONE);
+            } else if (toExists && fromExists) {
+                // a copying rename died half way: the source is whole, the copy is not
+                fs.delete(s.to, true);
+            }
+        }
+    }
+
+    private void writeJournal(List<Step> plan) {
+        Path tmp = new Path(journal() + ".tmp");
+        try {
+            try (org.apache.hadoop.fs.FSDataOutputStream o = fs.create(tmp, true)) {
+                o.write(Step.render(runId, mode, plan).getBytes(StandardCharsets.UTF_8));
+            }
+            fileContext().rename(tmp, journal(), Options.Rename.NONE);
+        } catch (IOException e) {
+            throw JobException.output("Output " + output + ": cannot write the commit journal " + journal() + " ("
+                    + e.getMessage() + "); nothing was committed");
+        }
+    }
+
+    private String readText(Path p) throws IOException {
+        try (org.apache.hadoop.fs.FSDataInputStream in = fs.open(p)) {
+            return new String(in.readAllBytes(), StandardCharsets.UTF_8);
         }
     }
 
@@ -219,16 +426,85 @@ public final class OutputCommitter {
     public void abort() {
         try {
             fs.delete(staging, true);
+            fs.delete(manifestAside("new"), false);
         } catch (IOException e) {
             LOG.warn("Could not delete staging folder {}: {}", staging, e.getMessage());
         }
     }
 
+    /** Ends the run's hold on the output (after commit or abort). */
+    public void release() {
+        if (lease != null) {
+            lease.close();
+        }
+    }
+
     public void writeText(String name, String text) {
         try (org.apache.hadoop.fs.FSDataOutputStream o = fs.create(new Path(staging, name), true)) {
-            o.write(text.getBytes(java.nio.charset.StandardCharsets.UTF_8));
+            o.write(text.getBytes(StandardCharsets.UTF_8));
         } catch (IOException e) {
             throw JobException.output("Output " + output + ": cannot write " + name + " (" + e.getMessage() + ")");
+        }
+    }
+
+    /** One step of a commit plan: move a file or folder, or create a folder. */
+    static final class Step {
+        enum Op { MOVE, MKDIR }
+
+        final Op op;
+        final Path from;
+        final Path to;
+
+        private Step(Op op, Path from, Path to) {
+            this.op = op;
+            this.from = from;
+            this.to = to;
+        }
+
+        static Step move(Path from, Path to) { return new Step(Op.MOVE, from, to); }
+
+        static Step mkdir(Path dir) { return new Step(Op.MKDIR, null, dir); }
+
+        String describe() { return op == Op.MKDIR ? "create " + to : "move " + from + " -> " + to; }
+
+        static String render(String runId, Mode mode, List<Step> plan) {
+            com.fasterxml.jackson.databind.ObjectMapper m = new com.fasterxml.jackson.databind.ObjectMapper();
+            com.fasterxml.jackson.databind.node.ObjectNode root = m.createObjectNode();
+            root.put("run_id", runId);
+            root.put("write_mode", mode.label());
+            com.fasterxml.jackson.databind.node.ArrayNode steps = root.putArray("steps");
+            for (Step s : plan) {
+                com.fasterxml.jackson.databind.node.ObjectNode n = steps.addObject();
+                n.put("op", s.op.name().toLowerCase(Locale.ROOT));
+                if (s.from != null) {
+                    n.put("from", s.from.toString());
+                }
+                n.put("to", s.to.toString());
+            }
+            try {
+                return m.writerWithDefaultPrettyPrinter().writeValueAsString(root) + "\n";
+            } catch (IOException e) {
+                throw new IllegalStateException(e);
+            }
+        }
+
+        static List<Step> parse(String text, Path where) {
+            try {
+                com.fasterxml.jackson.databind.JsonNode root = new com.fasterxml.jackson.databind.ObjectMapper().readTree(text);
+                List<Step> plan = new ArrayList<>();
+                for (com.fasterxml.jackson.databind.JsonNode n : root.get("steps")) {
+                    String op = n.get("op").asText();
+                    if (op.equals("mkdir")) {
+                        plan.add(mkdir(new Path(n.get("to").asText())));
+                    } else {
+                        plan.add(move(new Path(n.get("from").asText()), new Path(n.get("to").asText())));
+                    }
+                }
+                return plan;
+            } catch (IOException | RuntimeException e) {
+                throw JobException.output("Commit journal " + where + " cannot be read (" + e.getMessage() + ") (rule: a journal "
+                        + "left by a killed run is undone before the next run); inspect it and remove it by hand");
+            }
         }
     }
 }

@@ -34,4 +34,14 @@ public final class TestHooks {
         UserDefinedFunction f = functions.udf(gate, DataTypes.BooleanType).asNondeterministic();
         return d.filter(f.apply(functions.lit(1L)));
     }
+
+    /** Test-only: called before each step of a commit with its index and description; null in production. */
+    static volatile java.util.function.BiConsumer<Integer, String> commitStepHook;
+
+    static void beforeCommitStep(int index, String step) {
+        java.util.function.BiConsumer<Integer, String> h = commitStepHook;
+        if (h != null) {
+            h.accept(index, step);
+        }
+    }
 }
