@@ -130,7 +130,7 @@ public final class OutputLease implements AutoCloseable {
     public static OutputLease acquire(FileSystem fs, Path output, String runId, double staleAfterS) {
         try {
             fs.mkdirs(output.getParent());
-            for (int attempt = 0; attempt < 3; attempt++) {
+            for (int attempt = 0; attempt < 5; attempt++) {
                 List<Long> gens = generations(fs, output);
                 long newest = gens.isEmpty() ? 0 : gens.get(gens.size() - 1);
                 Holder h = newest == 0 ? null : read(fs, output, newest);
@@ -138,6 +138,9 @@ public final class OutputLease implements AutoCloseable {
                 if (h != null && !h.released) {
                     Optional<String> staleWhy = staleReason(h, now, staleAfterS);
                     if (staleWhy.isEmpty()) {
+                        if (attempt < 4 && changed(fs, output, newest)) {
+                            continue; // released and replaced while we looked: look again
+                        }
                         throw busy(output, h, now, staleAfterS);
                     }
                     LOG.warn("Output {}: taking over the lease of {}: {}", output, h.describe(now), staleWhy.get());
@@ -171,6 +174,12 @@ public final class OutputLease implements AutoCloseable {
             throw JobException.output("Output " + output + ": cannot take the lease beside it (" + e.getMessage()
                     + ") (rule: the output's parent must be writable)");
         }
+    }
+
+    /** True when generation {@code g} is no longer the newest or has been released since it was read. */
+    private static boolean changed(FileSystem fs, Path output, long g) throws IOException {
+        List<Long> gens = generations(fs, output);
+        return gens.isEmpty() || gens.get(gens.size() - 1) != g || fs.exists(new Path(leaseFile(output, g) + RELEASED));
     }
 
     private static JobException busy(Path output, Holder h, long now, double staleAfterS) {
@@ -246,7 +255,7 @@ public final class OutputLease implements AutoCloseable {
         List<Long> g = new ArrayList<>();
         for (FileStatus st : fs.listStatus(output.getParent())) {
             String n = st.getPath().getName();
-            if (n.startsWith(pre) && !n.endsWith(RELEASED) && !n.endsWith(".crc")) {
+            if (n.startsWith(pre) && !n.endsWith(RELEASED) && !n.endsWith(".crc") && !n.contains(".tmp-")) {
                 try {
                     g.add(Long.parseLong(n.substring(pre.length())));
                 } catch (NumberFormatException e) {
@@ -281,27 +290,47 @@ public final class OutputLease implements AutoCloseable {
         return new Holder(fields, renewed, generation, rel);
     }
 
-    /** Atomic create-if-absent; false when the file exists. */
+    /**
+     * Atomic create-if-absent of a file with its whole content (a reader never sees it empty): the content is written
+     * to a private temporary file first, then published under the name by an operation that fails when the name
+     * exists — a hard link on the local file system, {@code FileContext.rename} without overwrite elsewhere (atomic on
+     * HDFS). False when the file exists.
+     */
     static boolean createExclusive(FileSystem fs, Path f, String text) throws IOException {
         byte[] b = text.getBytes(StandardCharsets.UTF_8);
+        Path tmp = new Path(f.getParent(), f.getName() + ".tmp-" + java.util.UUID.randomUUID());
         if (local(fs)) {
+            java.nio.file.Path target = java.nio.file.Paths.get(f.toUri().getPath());
+            java.nio.file.Path t = java.nio.file.Paths.get(tmp.toUri().getPath());
+            Files.write(t, b, StandardOpenOption.CREATE_NEW, StandardOpenOption.WRITE);
             try {
-                Files.write(java.nio.file.Paths.get(f.toUri().getPath()), b, StandardOpenOption.CREATE_NEW, StandardOpenOption.WRITE);
+                Files.createLink(target, t);
                 return true;
             } catch (FileAlreadyExistsException e) {
                 return false;
+            } catch (UnsupportedOperationException | java.nio.file.FileSystemException e) {
+                // no hard links here: O_EXCL create, then write (a reader may see it empty for an instant)
+                try {
+                    Files.write(target, b, StandardOpenOption.CREATE_NEW, StandardOpenOption.WRITE);
+                    return true;
+                } catch (FileAlreadyExistsException e2) {
+                    return false;
+                }
+            } finally {
+                Files.deleteIfExists(t);
             }
         }
-        try (OutputStream o = fs.create(f, false)) {
+        try (OutputStream o = fs.create(tmp, false)) {
             o.write(b);
+        }
+        try {
+            org.apache.hadoop.fs.FileContext.getFileContext(f.toUri(), fs.getConf())
+                    .rename(tmp, f, org.apache.hadoop.fs.Options.Rename.NONE);
             return true;
         } catch (org.apache.hadoop.fs.FileAlreadyExistsException e) {
             return false;
-        } catch (IOException e) {
-            if (fs.exists(f)) {
-                return false;
-            }
-            throw e;
+        } finally {
+            fs.delete(tmp, false);
         }
     }
 
