@@ -177,6 +177,7 @@ public final class DeriveJob {
                 m.put("files", t.fileCount());
                 m.put("rows", t.rowsFromFooters() >= 0 ? t.rowsFromFooters() : null);
                 m.put("partition_columns", t.partitionColumns());
+                m.put("file_list", RunManifest.fileList(t));
                 tables.add(m);
             }
             facts.put("input_tables", tables);
