@@ -191,6 +191,7 @@ public final class DeriveJob {
                 m.put("files", t.fileCount());
                 m.put("rows", t.rowsFromFooters() >= 0 ? t.rowsFromFooters() : null);
                 m.put("partition_columns", t.partitionColumns());
+                m.put("file_list", RunManifest.fileList(t));
                 tables.add(m);
             }
             facts.put("input_tables", tables);
@@ -199,6 +200,13 @@ public final class DeriveJob {
             facts.put("output_rows", s.rowsOut);
             facts.put("partition_columns", partitionColumns);
             facts.put("finished_utc", Instant.now().toString());
+            // the inputs must still be the files the run read; checked last, just before the manifest and the commit
+            TestHooks.runBeforeInputRecheck();
+            long t3 = System.nanoTime();
+            for (InputTable t : twoTables ? List.of(astro, phot) : List.of(astro)) {
+                t.recheck(hconf);
+            }
+            seconds.put("recheck_inputs", (System.nanoTime() - t3) / 1e9);
             seconds.put("total_before_commit", (System.nanoTime() - t0) / 1e9);
             facts.put("history", history(req, committer, facts, partitionColumns, s.rowsOut));
             committer.writeText(DataDictionary.FILE_NAME, DataDictionary.render(derived.schema(), idColumn));

@@ -2,12 +2,15 @@ package org.starderive.job;
 
 import java.io.IOException;
 import java.io.Serializable;
+import java.time.Instant;
 import java.util.ArrayList;
 import java.util.HashMap;
 import java.util.LinkedHashSet;
 import java.util.List;
 import java.util.Map;
 import java.util.Set;
+import java.util.TreeMap;
+import java.util.TreeSet;
 import org.apache.hadoop.conf.Configuration;
 import org.apache.hadoop.fs.FileStatus;
 import org.apache.hadoop.fs.FileSystem;
@@ -37,17 +40,17 @@ public final class InputTable {
     private final Dataset<Row> data;
     private final List<String> partitionColumns;
     private final long rowsFromFooters;
-    private final int fileCount;
+    private final List<FileState> files;
 
     private InputTable(String role, List<String> paths, String format, Dataset<Row> data, List<String> partitionColumns,
-                       long rowsFromFooters, int fileCount) {
+                       long rowsFromFooters, List<FileState> files) {
         this.role = role;
         this.paths = paths;
         this.format = format;
         this.data = data;
         this.partitionColumns = partitionColumns;
         this.rowsFromFooters = rowsFromFooters;
-        this.fileCount = fileCount;
+        this.files = List.copyOf(files);
     }
 
     public String role() { return role; }
@@ -57,30 +60,61 @@ public final class InputTable {
     public List<String> partitionColumns() { return partitionColumns; }
     /** Row count from the Parquet footers (−1 for CSV). */
     public long rowsFromFooters() { return rowsFromFooters; }
-    public int fileCount() { return fileCount; }
+    public int fileCount() { return files.size(); }
+    /** The data files as listed when the table was opened, in listing order. */
+    public List<FileState> files() { return files; }
 
     private static boolean hidden(String name) {
         return name.startsWith("_") || name.startsWith(".");
     }
 
-    /** Reads and checks one table. */
-    public static InputTable open(SparkSession spark, String role, List<String> paths, String format) {
-        Configuration conf = spark.sparkContext().hadoopConfiguration();
-        List<String> files = new ArrayList<>();
-        Set<List<String>> partitionLayouts = new LinkedHashSet<>();
-        Map<List<String>, String> layoutExample = new HashMap<>();
+    /** One data file as listed when the table was opened: path, size in bytes, modification time (ms since 1970, UTC). */
+    public static final class FileState {
+        public final String path;
+        public final long bytes;
+        public final long modifiedMillis;
+
+        FileState(String path, long bytes, long modifiedMillis) {
+            this.path = path;
+            this.bytes = bytes;
+            this.modifiedMillis = modifiedMillis;
+        }
+    }
+
+    /** What one listing of the input paths found. */
+    private static final class Listing {
+        final List<FileState> files = new ArrayList<>();
+        final Set<List<String>> partitionLayouts = new LinkedHashSet<>();
+        final Map<List<String>, String> layoutExample = new HashMap<>();
+
+        void add(FileStatus st, List<String> keys) {
+            String path = st.getPath().toString();
+            files.add(new FileState(path, st.getLen(), st.getModificationTime()));
+            partitionLayouts.add(keys);
+            layoutExample.putIfAbsent(keys, path);
+        }
+    }
+
+    /**
+     * Lists the data files of the paths: a file path is itself; a folder is listed recursively, skipping every file
+     * with a hidden ({@code _} or {@code .}) segment below the folder. {@code mustExist} false (the re-check) treats a
+     * path that has gone as holding no files, so that the comparison names the files that went with it.
+     */
+    private static Listing list(Configuration conf, String role, List<String> paths, boolean mustExist) {
+        Listing listing = new Listing();
         for (String p : paths) {
             Path root = new Path(p);
             try {
                 FileSystem fs = root.getFileSystem(conf);
                 if (!fs.exists(root)) {
+                    if (!mustExist) {
+                        continue;
+                    }
                     throw JobException.input("Input " + role + " " + p + ": path does not exist (rule: every input path must exist)");
                 }
                 FileStatus st = fs.getFileStatus(root);
                 if (st.isFile()) {
-                    files.add(st.getPath().toString());
-                    partitionLayouts.add(List.of());
-                    layoutExample.putIfAbsent(List.of(), st.getPath().toString());
+                    listing.add(st, List.of());
                     continue;
                 }
                 String rootPath = fs.makeQualified(root).toUri().getPath();
@@ -106,14 +140,26 @@ public final class InputTable {
                     if (skip) {
                         continue;
                     }
-                    files.add(f.getPath().toString());
-                    partitionLayouts.add(keys);
-                    layoutExample.putIfAbsent(keys, f.getPath().toString());
+                    listing.add(f, keys);
                 }
             } catch (IOException e) {
-                throw JobException.input("Input " + role + " " + p + ": cannot be listed (" + e.getMessage() + ") (rule: every input path must be readable)");
+                throw JobException.input("Input " + role + " " + p + ": cannot be listed (" + e.getMessage() + ") (rule: every input path must be readable)"
+                        + (mustExist ? "" : "; nothing was committed"));
             }
         }
+        return listing;
+    }
+
+    /** Reads and checks one table. */
+    public static InputTable open(SparkSession spark, String role, List<String> paths, String format) {
+        Configuration conf = spark.sparkContext().hadoopConfiguration();
+        Listing listing = list(conf, role, paths, true);
+        List<String> files = new ArrayList<>();
+        for (FileState f : listing.files) {
+            files.add(f.path);
+        }
+        Set<List<String>> partitionLayouts = listing.partitionLayouts;
+        Map<List<String>, String> layoutExample = listing.layoutExample;
         if (files.isEmpty()) {
             throw JobException.input("Input " + role + " " + paths + ": no data files (rule: the input must not be empty)");
         }
@@ -136,7 +182,61 @@ public final class InputTable {
         } else {
             throw JobException.config("Invalid --input-format: " + format + " (must be parquet or csv)");
         }
-        return new InputTable(role, paths, format, data, partitionColumns, footerRows, files.size());
+        return new InputTable(role, paths, format, data, partitionColumns, footerRows, listing.files);
+    }
+
+    /**
+     * Lists the paths again, by the same rules as {@link #open}, and compares with what was listed then. Any data file
+     * removed, added, or with another size or modification time stops the job naming the first such file (in path
+     * order): the output would otherwise mix the rows of two versions of the input, or miss rows the run never saw.
+     */
+    public void recheck(Configuration conf) {
+        Map<String, FileState> before = new TreeMap<>();
+        for (FileState f : files) {
+            before.put(f.path, f);
+        }
+        Map<String, FileState> now = new TreeMap<>();
+        for (FileState f : list(conf, role, paths, false).files) {
+            now.put(f.path, f);
+        }
+        Set<String> all = new TreeSet<>(before.keySet());
+        all.addAll(now.keySet());
+        String first = null;
+        String what = null;
+        int changed = 0;
+        for (String path : all) {
+            String d = difference(before.get(path), now.get(path));
+            if (d != null) {
+                changed++;
+                if (first == null) {
+                    first = path;
+                    what = d;
+                }
+            }
+        }
+        if (first != null) {
+            throw JobException.input("Input " + role + " file " + first + ": " + what + " since the run listed it"
+                    + (changed > 1 ? " (and " + (changed - 1) + " more file" + (changed > 2 ? "s" : "") + " changed)" : "")
+                    + " (rule: inputs must not change while a run reads them); nothing was committed");
+        }
+    }
+
+    /** What changed between two listings of one file, or null if nothing did. */
+    private static String difference(FileState was, FileState is) {
+        if (is == null) {
+            return "file removed";
+        }
+        if (was == null) {
+            return "new file appeared";
+        }
+        List<String> d = new ArrayList<>();
+        if (was.bytes != is.bytes) {
+            d.add("size " + was.bytes + " -> " + is.bytes + " bytes");
+        }
+        if (was.modifiedMillis != is.modifiedMillis) {
+            d.add("modified " + Instant.ofEpochMilli(was.modifiedMillis) + " -> " + Instant.ofEpochMilli(is.modifiedMillis));
+        }
+        return d.isEmpty() ? null : String.join(", ", d);
     }
 
     /** What one footer read returns: rows and schema, or the error. */

@@ -11,7 +11,10 @@ public final class JobException extends RuntimeException {
     public enum Kind {
         /** Command-line usage or configuration file error. */
         CONFIG(2),
-        /** The input dataset violates a rule (missing column, wrong type, unreadable file, empty input ...). */
+        /**
+         * The input dataset violates a rule (missing column, wrong type, unreadable file, empty input ...), or an input
+         * file changed while the run read it (found just before the commit; nothing is committed).
+         */
         INPUT(3),
         /** The output location cannot be used (exists in fail mode, inside the input, not writable ...). */
         OUTPUT(4),

@@ -4,6 +4,10 @@ import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.SerializationFeature;
 import com.fasterxml.jackson.databind.node.ArrayNode;
 import com.fasterxml.jackson.databind.node.ObjectNode;
+import java.time.Instant;
+import java.util.ArrayList;
+import java.util.Comparator;
+import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import org.starderive.physics.BolometricCorrectionFlower1996;
@@ -87,6 +91,25 @@ public final class RunManifest {
             n.put("reference", c.reference());
         }
         return methods;
+    }
+
+    /**
+     * The {@code file_list} of one input table: every data file with its size and modification time as listed when
+     * the table was opened (and found unchanged before the commit), sorted by path so that the manifest does not
+     * depend on the listing order of the file system.
+     */
+    static List<Map<String, Object>> fileList(InputTable t) {
+        List<Map<String, Object>> out = new ArrayList<>();
+        List<InputTable.FileState> files = new ArrayList<>(t.files());
+        files.sort(Comparator.comparing(f -> f.path));
+        for (InputTable.FileState f : files) {
+            Map<String, Object> m = new LinkedHashMap<>();
+            m.put("path", f.path);
+            m.put("bytes", f.bytes);
+            m.put("modified_utc", Instant.ofEpochMilli(f.modifiedMillis).toString());
+            out.add(m);
+        }
+        return out;
     }
 
     /** Renders the manifest. */

@@ -10,14 +10,32 @@ import org.apache.spark.sql.functions;
 import org.apache.spark.sql.types.DataTypes;
 
 /**
- * Test-only fault injection, off unless the Spark configuration sets {@value #FAIL_FIRST_ATTEMPT} to true: the first
- * attempt of the task that processes partition 0 then throws, so Spark must retry it. Used to prove that a retried
- * task writes the same numbers. Never set in production.
+ * Test-only fault injection, never set in production:
+ * <ul>
+ *   <li>off unless the Spark configuration sets {@value #FAIL_FIRST_ATTEMPT} to true: the first attempt of the task
+ *       that processes partition 0 then throws, so Spark must retry it. Used to prove that a retried task writes the
+ *       same numbers;</li>
+ *   <li>{@link #beforeInputRecheck}: run by the job after the output is written and checked, just before it lists
+ *       the inputs again; a test sets it to change an input file between the read and the commit.</li>
+ * </ul>
  */
 public final class TestHooks {
     private TestHooks() {}
 
     public static final String FAIL_FIRST_ATTEMPT = "spark.starderive.test.failFirstAttempt";
+
+    /**
+     * Run just before the input re-check, when set. Package-private: only tests (same package) set it, and they reset
+     * it to null in a finally block. Never set in production, where it stays null.
+     */
+    static volatile Runnable beforeInputRecheck;
+
+    static void runBeforeInputRecheck() {
+        Runnable r = beforeInputRecheck;
+        if (r != null) {
+            r.run();
+        }
+    }
 
     static Dataset<Row> maybeFailFirstAttempt(Dataset<Row> d) {
         SparkSession spark = d.sparkSession();
