@@ -88,10 +88,49 @@ public final class DeriveJob {
             committer.prepare(allInputs, hconf, config.leaseStaleAfterS());
             seconds.put("take_lease", committer.leaseSeconds());
             seconds.put("check_output", (System.nanoTime() - t0) / 1e9);
+            // the run's Spark jobs in one group, so that after a failure their last tasks can be waited for
+            spark.sparkContext().setJobGroup("starderive-" + runId, "starderive derive " + runId, true);
             return runHoldingLease(spark, req, config, committer, runId, t0, seconds);
         } finally {
+            spark.sparkContext().clearJobGroup();
             committer.release();
         }
+    }
+
+    /**
+     * After a failed Spark job its other tasks are killed asynchronously and may still write into the staging folder
+     * for a moment: wait (at most 60 s) until no task of this run's jobs is running, so that removing the staging
+     * folder is final.
+     */
+    private static void awaitTasksEnded(SparkSession spark, String runId) {
+        org.apache.spark.SparkStatusTracker st = spark.sparkContext().statusTracker();
+        String group = "starderive-" + runId;
+        spark.sparkContext().cancelJobGroup(group);
+        long deadline = System.nanoTime() + 60_000_000_000L;
+        while (System.nanoTime() < deadline) {
+            boolean running = false;
+            for (int job : st.getJobIdsForGroup(group)) {
+                scala.Option<org.apache.spark.SparkJobInfo> ji = st.getJobInfo(job);
+                if (ji.isDefined()) {
+                    for (int stage : ji.get().stageIds()) {
+                        scala.Option<org.apache.spark.SparkStageInfo> si = st.getStageInfo(stage);
+                        if (si.isDefined() && si.get().numActiveTasks() > 0) {
+                            running = true;
+                        }
+                    }
+                }
+            }
+            if (!running) {
+                return;
+            }
+            try {
+                Thread.sleep(100);
+            } catch (InterruptedException e) {
+                Thread.currentThread().interrupt();
+                return;
+            }
+        }
+        LOG.warn("Tasks of run {} still running after 60 s; the staging folder may need removing by hand", runId);
     }
 
     private static Summary runHoldingLease(SparkSession spark, Request req, JobConfig config, OutputCommitter committer,
@@ -217,10 +256,42 @@ public final class DeriveJob {
             LOG.info("Committed {} in {} s (lease taken in {} s)", committer.output(), s.commitSeconds, committer.leaseSeconds());
             s.seconds = (System.nanoTime() - t0) / 1e9;
             return s;
-        } catch (RuntimeException e) {
+        } catch (Exception e) { // Spark's own exceptions are checked ones, thrown from Scala undeclared
+            awaitTasksEnded(spark, runId);
             committer.abort();
-            throw e;
+            throw storageFailure(e, committer);
         }
+    }
+
+    /**
+     * A failure of the storage while the output was written (full disk, quota, an I/O error of the file system) as a
+     * plain output error naming the path; anything else unchanged.
+     */
+    /** Rethrows {@code e} as it is (checked or not), for the compiler a RuntimeException. */
+    @SuppressWarnings("unchecked")
+    private static <T extends Exception> T unchanged(Exception e) throws T {
+        throw (T) e;
+    }
+
+    static RuntimeException storageFailure(Exception e, OutputCommitter committer) {
+        if (e instanceof JobException) {
+            return (JobException) e;
+        }
+        java.io.IOException io = null;
+        for (Throwable t = e; t != null && t.getCause() != t; t = t.getCause()) {
+            if (t instanceof java.io.IOException) {
+                io = (java.io.IOException) t;
+            }
+        }
+        if (io == null) {
+            return DeriveJob.<RuntimeException>unchanged(e);
+        }
+        String m = String.valueOf(io.getMessage());
+        String l = m.toLowerCase(java.util.Locale.ROOT);
+        String what = l.contains("no space") || l.contains("quota") ? "no space left on the output's file system"
+                : "write failed";
+        return new JobException(JobException.Kind.OUTPUT, "Output " + committer.output() + ": " + what + " while writing "
+                + committer.staging() + " (" + m + "); nothing was committed and the previous output is intact", e);
     }
 
     /**

@@ -105,7 +105,25 @@ public final class OutputCommitter {
         return new Path(output.getParent(), "." + output.getName() + ".manifest-" + runId + "-" + which);
     }
 
-    private Path journal() { return new Path(output.getParent(), "." + output.getName() + ".commit-" + runId + ".json"); }
+    private Path journal() { return journalOf(runId); }
+
+    private Path journalOf(String run) {
+        return new Path(output.getParent(), "." + output.getName() + ".commit-" + run + ".json");
+    }
+
+    /** The empty file that records that step {@code i} of run {@code run}'s commit is done. */
+    private Path stepDone(String run, int i) {
+        return new Path(output.getParent(), "." + output.getName() + ".commit-" + run + ".step-" + String.format(Locale.ROOT, "%06d", i));
+    }
+
+    /** Number of steps of run {@code run}'s plan recorded done, counted from the first. */
+    private int stepsDone(String run, int planSize) throws IOException {
+        int c = 0;
+        while (c < planSize && fs.exists(stepDone(run, c))) {
+            c++;
+        }
+        return c;
+    }
 
     /**
      * Takes the output's lease (refusing with exit 4 when another run holds it), then makes the checks that come
@@ -140,8 +158,9 @@ public final class OutputCommitter {
             FileStatus[] stale = fs.globStatus(new Path(output.getParent(), output.getName() + ".staging-*"));
             if (stale != null) {
                 for (FileStatus st : stale) {
-                    LOG.warn("Stale staging folder {} from a run that was killed; it is not part of the output and can be deleted",
-                            st.getPath());
+                    // under the lease no other run writes this output: a staging folder is a dead run's
+                    fs.delete(st.getPath(), true);
+                    LOG.warn("Removed staging folder {} left by a run that was killed", st.getPath());
                 }
             }
             boolean exists = fs.exists(output);
@@ -177,8 +196,10 @@ public final class OutputCommitter {
             Arrays.sort(journals, Comparator.comparing(st -> st.getPath().getName()));
             for (int i = journals.length - 1; i >= 0; i--) {
                 Path j = journals[i].getPath();
+                String n = j.getName();
+                String run = n.substring(("." + output.getName() + ".commit-").length(), n.length() - ".json".length());
                 List<Step> plan = Step.parse(readText(j), j);
-                undo(plan, plan.size());
+                undo(plan, stepsDone(run, plan.size()), true);
                 fs.delete(j, false);
                 LOG.warn("Output {}: undid the commit journalled in {} (its run died during the commit); the previous output is back",
                         output, j);
@@ -193,7 +214,7 @@ public final class OutputCommitter {
                 LOG.warn("Restored {} from {} (a previous run died during its commit)", output, newest.getPath());
             }
         }
-        for (String pattern : List.of(".previous-*", ".manifest-*", ".commit-*.json.tmp")) {
+        for (String pattern : List.of(".previous-*", ".manifest-*", ".commit-*.json.tmp", ".commit-*.step-*")) {
             FileStatus[] left = fs.globStatus(new Path(output.getParent(), "." + output.getName() + pattern));
             if (left != null) {
                 for (FileStatus st : left) {
@@ -270,6 +291,7 @@ public final class OutputCommitter {
                 TestHooks.beforeCommitStep(done, s.describe());
                 begun = true;
                 apply(s);
+                fs.create(stepDone(runId, done), true).close();
                 begun = false;
                 done++;
             }
@@ -278,8 +300,9 @@ public final class OutputCommitter {
             // a move refused because its target exists never began: its target is not ours to remove
             boolean partly = begun && !(e instanceof org.apache.hadoop.fs.FileAlreadyExistsException);
             try {
-                undo(plan, partly ? done + 1 : done);
+                undo(plan, done, partly);
                 fs.delete(journal(), false);
+                deleteStepMarks(plan.size());
             } catch (IOException | RuntimeException u) {
                 throw JobException.output("Output " + output + ": commit failed at step " + (done + 1) + " of " + plan.size() + " ("
                         + why + ") and could not be undone (" + u.getMessage() + "); the journal " + journal()
@@ -293,6 +316,7 @@ public final class OutputCommitter {
         }
         try {
             fs.delete(journal(), false); // the commit point
+            deleteStepMarks(plan.size());
         } catch (IOException e) {
             throw JobException.output("Output " + output + ": committed, but the journal " + journal() + " could not be removed ("
                     + e.getMessage() + "); remove it by hand or the next run will undo this commit");
@@ -378,28 +402,53 @@ public final class OutputCommitter {
         fileContext().rename(s.from, s.to, Options.Rename.NONE);
     }
 
+    private void deleteStepMarks(int planSize) throws IOException {
+        for (int i = 0; i < planSize; i++) {
+            fs.delete(stepDone(runId, i), false);
+        }
+    }
+
     /**
-     * Undoes the first {@code count} steps of a plan in reverse. A move is undone when its target exists and its source
-     * does not; a folder created by the plan is removed when empty. Steps never begun are left alone.
+     * Undoes a plan of which the first {@code done} steps are recorded done. Step {@code done} itself may have begun
+     * ({@code mayHaveBegun}): at its turn its target did not exist, so a target with the source gone means the move
+     * happened, and a target beside the source means a copying move died half way (the copy is removed). Then the
+     * done steps are reversed, newest first; folders the plan created are removed when empty.
      */
-    private void undo(List<Step> plan, int count) throws IOException {
-        for (int i = Math.min(count, plan.size()) - 1; i >= 0; i--) {
+    private void undo(List<Step> plan, int done, boolean mayHaveBegun) throws IOException {
+        if (mayHaveBegun && done < plan.size()) {
+            Step s = plan.get(done);
+            if (s.op == Step.Op.MKDIR) {
+                removeIfEmpty(s.to);
+            } else if (fs.exists(s.to)) {
+                if (fs.exists(s.from)) {
+                    fs.delete(s.to, true);
+                } else {
+                    moveBack(s);
+                }
+            }
+        }
+        for (int i = Math.min(done, plan.size()) - 1; i >= 0; i--) {
             Step s = plan.get(i);
             if (s.op == Step.Op.MKDIR) {
-                if (fs.exists(s.to) && fs.listStatus(s.to).length == 0) {
-                    fs.delete(s.to, false);
+                removeIfEmpty(s.to);
+            } else if (fs.exists(s.to)) {
+                if (fs.exists(s.from)) {
+                    // a copying move back that died half way in an earlier recovery: the source is the copy
+                    fs.delete(s.from, true);
                 }
-                continue;
+                moveBack(s);
             }
-            boolean toExists = fs.exists(s.to);
-            boolean fromExists = fs.exists(s.from);
-            if (toExists && !fromExists) {
-                fs.mkdirs(s.from.getParent());
-                fileContext().rename(s.to, s.from, Options.Rename.NONE);
-            } else if (toExists && fromExists) {
-                // a copying rename died half way: the source is whole, the copy is not
-                fs.delete(s.to, true);
-            }
+        }
+    }
+
+    private void moveBack(Step s) throws IOException {
+        fs.mkdirs(s.from.getParent());
+        fileContext().rename(s.to, s.from, Options.Rename.NONE);
+    }
+
+    private void removeIfEmpty(Path dir) throws IOException {
+        if (fs.exists(dir) && fs.listStatus(dir).length == 0) {
+            fs.delete(dir, false);
         }
     }
 
@@ -411,6 +460,11 @@ public final class OutputCommitter {
             }
             fileContext().rename(tmp, journal(), Options.Rename.NONE);
         } catch (IOException e) {
+            try {
+                fs.delete(tmp, false);
+            } catch (IOException ignored) {
+                // the next run removes it
+            }
             throw JobException.output("Output " + output + ": cannot write the commit journal " + journal() + " ("
                     + e.getMessage() + "); nothing was committed");
         }

@@ -395,7 +395,13 @@ public final class OutputLease implements AutoCloseable {
         try {
             markReleased(fs, file);
         } catch (IOException e) {
-            LOG.warn("Output {}: could not mark the lease released ({}); it will be taken over when stale", output, e.getMessage());
+            try {
+                // no marker: remove the lease itself (the next run then takes the same generation afresh)
+                fs.delete(file, false);
+                LOG.warn("Output {}: could not mark the lease released ({}); removed it instead", output, e.getMessage());
+            } catch (IOException e2) {
+                LOG.warn("Output {}: could not release the lease ({}); it will be taken over when stale", output, e2.getMessage());
+            }
         }
     }
 

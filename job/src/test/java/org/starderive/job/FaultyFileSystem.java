@@ -4,20 +4,16 @@ import java.io.IOException;
 import java.io.OutputStream;
 import java.net.URI;
 import java.net.URISyntaxException;
-import java.util.EnumSet;
 import java.util.concurrent.atomic.AtomicInteger;
 import java.util.concurrent.atomic.AtomicLong;
 import java.util.function.Consumer;
 import org.apache.hadoop.conf.Configuration;
-import org.apache.hadoop.fs.CreateFlag;
 import org.apache.hadoop.fs.DelegateToFileSystem;
-import org.apache.hadoop.fs.FSDataOutputStream;
 import org.apache.hadoop.fs.FileStatus;
 import org.apache.hadoop.fs.FileUtil;
 import org.apache.hadoop.fs.Path;
 import org.apache.hadoop.fs.RawLocalFileSystem;
 import org.apache.hadoop.fs.permission.FsPermission;
-import org.apache.hadoop.util.Progressable;
 
 /**
  * Test-only Hadoop file system {@code faulty:///PATH}: the local file system with storage faults switched on from a
@@ -72,19 +68,18 @@ public class FaultyFileSystem extends RawLocalFileSystem {
     @Override
     public String getScheme() { return SCHEME; }
 
+    // every create and append of RawLocalFileSystem opens its stream through these two
     @Override
-    public FSDataOutputStream create(Path f, FsPermission permission, boolean overwrite, int bufferSize, short replication,
-                                     long blockSize, Progressable progress) throws IOException {
-        return wrap(f, super.create(f, permission, overwrite, bufferSize, replication, blockSize, progress));
+    protected OutputStream createOutputStream(Path f, boolean append) throws IOException {
+        return wrap(f, super.createOutputStream(f, append));
     }
 
     @Override
-    public FSDataOutputStream createNonRecursive(Path f, FsPermission permission, EnumSet<CreateFlag> flags, int bufferSize,
-                                                 short replication, long blockSize, Progressable progress) throws IOException {
-        return wrap(f, super.createNonRecursive(f, permission, flags, bufferSize, replication, blockSize, progress));
+    protected OutputStream createOutputStreamWithMode(Path f, boolean append, FsPermission permission) throws IOException {
+        return wrap(f, super.createOutputStreamWithMode(f, append, permission));
     }
 
-    private FSDataOutputStream wrap(Path f, FSDataOutputStream inner) {
+    private OutputStream wrap(Path f, OutputStream inner) {
         if (!f.toString().contains(".staging-")) {
             return inner;
         }
@@ -113,7 +108,7 @@ public class FaultyFileSystem extends RawLocalFileSystem {
             @Override
             public void close() throws IOException { inner.close(); }
         };
-        return new FSDataOutputStream(counting, null);
+        return counting;
     }
 
     @Override
