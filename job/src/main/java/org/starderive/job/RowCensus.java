@@ -5,6 +5,7 @@ import static org.apache.spark.sql.functions.col;
 import static org.apache.spark.sql.functions.count;
 import static org.apache.spark.sql.functions.greatest;
 import static org.apache.spark.sql.functions.lit;
+import static org.apache.spark.sql.functions.not;
 import static org.apache.spark.sql.functions.shiftrightunsigned;
 import static org.apache.spark.sql.functions.sum;
 import static org.apache.spark.sql.functions.when;
@@ -23,7 +24,8 @@ import org.starderive.physics.QualityFlag;
  * The multiset of star ids of a table, summarised so that two tables can be compared without collecting them:
  * the row count and the sums of the low and high 32 bits of the 64-bit xxHash of each id (sums of non-negative
  * 32-bit values: no overflow below 2·10⁹ rows). Equal multisets give equal summaries; a lost, added or changed row
- * changes the summary except with probability about 2⁻⁶⁴. Null ids count too (they hash to a fixed value).
+ * changes the summary except with probability about 2⁻⁶⁴. Null ids count too (they hash to a fixed value), as do
+ * empty and blank text ids (each by its own text).
  */
 public final class RowCensus {
     public final long rows;
@@ -50,12 +52,17 @@ public final class RowCensus {
 
     /**
      * Census the join policy must produce from two tables: max(k, j) copies of an id held k times in one and j
-     * times in the other.
+     * times in the other; a missing id ({@link DerivePipeline#idMissing}) matches nothing, so its k rows in one table
+     * and j rows in the other give k + j rows.
      */
     public static RowCensus expectedJoin(Dataset<Row> a, Dataset<Row> p, String idColumn) {
         Dataset<Row> ca = a.groupBy(col(idColumn)).agg(count(lit(1)).as("na"));
         Dataset<Row> cp = p.groupBy(col(idColumn)).agg(count(lit(1)).as("np"));
-        Dataset<Row> j = ca.join(cp, ca.col(idColumn).eqNullSafe(cp.col(idColumn)), "full_outer")
+        // as in DerivePipeline.join: equalTo (null meets nothing) and no blank text id meets another; the groups of a
+        // missing id then come out unmatched, one per table, each with its own count
+        Column match = ca.col(idColumn).equalTo(cp.col(idColumn))
+                .and(not(DerivePipeline.idMissing(ca.col(idColumn), a.schema().apply(idColumn).dataType())));
+        Dataset<Row> j = ca.join(cp, match, "full_outer")
                 .select(coalesce(ca.col(idColumn), cp.col(idColumn)).as("id"),
                         greatest(coalesce(col("na"), lit(0L)), coalesce(col("np"), lit(0L))).as("n"));
         Row r = j.agg(coalesce(sum(col("n")), lit(0L)),

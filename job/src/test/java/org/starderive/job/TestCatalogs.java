@@ -14,7 +14,9 @@ import org.apache.spark.sql.Dataset;
 import org.apache.spark.sql.Row;
 import org.apache.spark.sql.RowFactory;
 import org.apache.spark.sql.SparkSession;
+import org.apache.spark.sql.types.DataType;
 import org.apache.spark.sql.types.DataTypes;
+import org.apache.spark.sql.types.StructField;
 import org.apache.spark.sql.types.StructType;
 
 /**
@@ -67,6 +69,26 @@ final class TestCatalogs {
 
     static Dataset<Row> frame(SparkSession spark, List<Row> rows) {
         return spark.createDataFrame(rows, schema());
+    }
+
+    /**
+     * The same rows with other star ids, of the given type and nullable: {@code ids.get(i)} replaces the id of
+     * {@code rows.get(i)} (null, empty or blank ids for the missing-id tests).
+     */
+    static Dataset<Row> frameWithIds(SparkSession spark, List<Row> rows, List<?> ids, DataType idType) {
+        StructType s = schema();
+        StructField[] f = s.fields().clone();
+        f[0] = new StructField(f[0].name(), idType, true, f[0].metadata());
+        List<Row> out = new ArrayList<>();
+        for (int i = 0; i < rows.size(); i++) {
+            Object[] v = new Object[rows.get(i).length()];
+            for (int k = 0; k < v.length; k++) {
+                v[k] = rows.get(i).get(k);
+            }
+            v[0] = ids.get(i);
+            out.add(RowFactory.create(v));
+        }
+        return spark.createDataFrame(out, new StructType(f));
     }
 
     static void writeParquet(SparkSession spark, List<Row> rows, Path dir) {
