@@ -187,9 +187,10 @@ public final class DerivePipeline {
         Column id = col(idColumn);
         DataType idType = d.schema().apply(idColumn).dataType();
         Column present = not(idMissing(id, idType));
+        Column key = RowCensus.key(id, idType);
         Row r = counts.agg(coalesce(sum(n), lit(0L)),
-                coalesce(sum(n.multiply(RowCensus.lo(id))), lit(0L)),
-                coalesce(sum(n.multiply(RowCensus.hi(id))), lit(0L)),
+                coalesce(sum(n.multiply(RowCensus.lo(key))), lit(0L)),
+                coalesce(sum(n.multiply(RowCensus.hi(key))), lit(0L)),
                 coalesce(sum(when(n.gt(1).and(present), 1L).otherwise(0L)), lit(0L))).first();
         return new IdScan(new RowCensus(r.getLong(0), r.getLong(1), r.getLong(2)), r.getLong(3), counts);
     }

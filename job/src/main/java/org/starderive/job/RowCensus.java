@@ -18,14 +18,17 @@ import java.util.Map;
 import org.apache.spark.sql.Column;
 import org.apache.spark.sql.Dataset;
 import org.apache.spark.sql.Row;
+import org.apache.spark.sql.types.DataType;
 import org.starderive.physics.QualityFlag;
 
 /**
  * The multiset of star ids of a table, summarised so that two tables can be compared without collecting them:
  * the row count and the sums of the low and high 32 bits of the 64-bit xxHash of each id (sums of non-negative
  * 32-bit values: no overflow below 2·10⁹ rows). Equal multisets give equal summaries; a lost, added or changed row
- * changes the summary except with probability about 2⁻⁶⁴. Null ids count too (they hash to a fixed value), as do
- * empty and blank text ids (each by its own text).
+ * changes the summary except with probability about 2⁻⁶⁴. Rows without an id (null, empty or blank text:
+ * {@link DerivePipeline#idMissing}) count too, all under the hash of null ({@link #key}): such a row has no identity
+ * to keep, and a CSV output would not keep it — Spark writes an empty text as {@code ""}, trims a blank one to it,
+ * and reads {@code ""} back as null.
  */
 public final class RowCensus {
     public final long rows;
@@ -36,6 +39,11 @@ public final class RowCensus {
         this.rows = rows;
         this.hashLo = hashLo;
         this.hashHi = hashHi;
+    }
+
+    /** The id as the census hashes it: a missing id ({@link DerivePipeline#idMissing}) as null, any other as it is. */
+    static Column key(Column id, DataType idType) {
+        return when(DerivePipeline.idMissing(id, idType), lit(null).cast(idType)).otherwise(id);
     }
 
     static Column lo(Column id) { return xxhash64(id).bitwiseAND(lit(0xFFFFFFFFL)); }
@@ -63,7 +71,7 @@ public final class RowCensus {
         Column match = ca.col(idColumn).equalTo(cp.col(idColumn))
                 .and(not(DerivePipeline.idMissing(ca.col(idColumn), a.schema().apply(idColumn).dataType())));
         Dataset<Row> j = ca.join(cp, match, "full_outer")
-                .select(coalesce(ca.col(idColumn), cp.col(idColumn)).as("id"),
+                .select(key(coalesce(ca.col(idColumn), cp.col(idColumn)), a.schema().apply(idColumn).dataType()).as("id"),
                         greatest(coalesce(col("na"), lit(0L)), coalesce(col("np"), lit(0L))).as("n"));
         Row r = j.agg(coalesce(sum(col("n")), lit(0L)),
                 coalesce(sum(col("n").multiply(lo(col("id")))), lit(0L)),
@@ -73,7 +81,7 @@ public final class RowCensus {
 
     /** Census of the written output plus the number of rows carrying each flag, in one pass. */
     public static Map.Entry<RowCensus, Map<String, Long>> ofOutput(Dataset<Row> out, String idColumn) {
-        List<Column> a = aggregates(col(idColumn));
+        List<Column> a = aggregates(key(col(idColumn), out.schema().apply(idColumn).dataType()));
         QualityFlag[] flags = QualityFlag.values();
         for (QualityFlag f : flags) {
             a.add(coalesce(sum(when(col("flags").bitwiseAND(lit(f.mask())).notEqual(0), 1L).otherwise(0L)), lit(0L)));

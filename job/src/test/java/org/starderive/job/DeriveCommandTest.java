@@ -266,6 +266,16 @@ class DeriveCommandTest {
         // the manifest counts them too
         String manifest = readString(out.resolve(RunManifest.FILE_NAME));
         assertTrue(manifest.contains("\"ID_MISSING\" : 7"), manifest);
+
+        // CSV output: Spark writes "" for an empty or blank text (it trims) and reads "" back as null; the row check
+        // before the commit must still find every row (the census hashes every missing id as null)
+        Path csv = tmp.resolve("out-csv");
+        CliRunner rc = CliRunner.run("derive", "--input", in.toString(), "--output", csv.toString(), "--output-format", "csv");
+        assertEquals(0, rc.exitCode, rc.toString());
+        assertTrue(rc.out.contains(summaryLine(QualityFlag.ID_MISSING, 7)), rc.out);
+        Dataset<Row> csvBack = spark.read().option("header", "true").csv(csv.toString());
+        assertEquals(12, csvBack.count());
+        assertEquals(7, csvBack.filter("flag_names LIKE '%ID_MISSING'").count());
     }
 
     /** A numeric id can only be missing by being null: same rules as for text ids. */
