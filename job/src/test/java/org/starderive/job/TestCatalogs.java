@@ -44,6 +44,13 @@ final class TestCatalogs {
                 .add("feh", DataTypes.DoubleType, true);
     }
 
+    /** The same columns with a star id of the given type that may be null (the missing-id tests). */
+    static StructType schema(DataType idType) {
+        StructField[] f = schema().fields().clone();
+        f[0] = new StructField(f[0].name(), idType, true, f[0].metadata());
+        return new StructType(f);
+    }
+
     /** n stars over 3 tiles; every 7th row carries a defect. */
     static List<Row> rows(int n, long idOffset) {
         List<Row> rows = new ArrayList<>();
@@ -76,9 +83,6 @@ final class TestCatalogs {
      * {@code rows.get(i)} (null, empty or blank ids for the missing-id tests).
      */
     static Dataset<Row> frameWithIds(SparkSession spark, List<Row> rows, List<?> ids, DataType idType) {
-        StructType s = schema();
-        StructField[] f = s.fields().clone();
-        f[0] = new StructField(f[0].name(), idType, true, f[0].metadata());
         List<Row> out = new ArrayList<>();
         for (int i = 0; i < rows.size(); i++) {
             Object[] v = new Object[rows.get(i).length()];
@@ -88,7 +92,7 @@ final class TestCatalogs {
             v[0] = ids.get(i);
             out.add(RowFactory.create(v));
         }
-        return spark.createDataFrame(out, new StructType(f));
+        return spark.createDataFrame(out, schema(idType));
     }
 
     static void writeParquet(SparkSession spark, List<Row> rows, Path dir) {
