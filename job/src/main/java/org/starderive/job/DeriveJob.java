@@ -165,7 +165,8 @@ public final class DeriveJob {
             }
             joined = pipeline.join(astro, phot);
             expected = RowCensus.expectedJoin(astro.data(), phot.data(), idColumn);
-            facts.put("join_policy", "full outer join on " + idColumn + ", copy by copy: max(k, j) rows for an id held k and j times");
+            facts.put("join_policy", "full outer join on " + idColumn + ", copy by copy: max(k, j) rows for an id held k and j times;"
+                    + " a null, empty or blank id matches nothing (one row each, ID_MISSING)");
         } else {
             String name = astro.role() + " " + astro.paths();
             if (!astro.data().schema().getFieldIndex(idColumn).isDefined()) {

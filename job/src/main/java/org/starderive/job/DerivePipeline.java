@@ -6,6 +6,7 @@ import static org.apache.spark.sql.functions.col;
 import static org.apache.spark.sql.functions.concat_ws;
 import static org.apache.spark.sql.functions.count;
 import static org.apache.spark.sql.functions.lit;
+import static org.apache.spark.sql.functions.not;
 import static org.apache.spark.sql.functions.row_number;
 import static org.apache.spark.sql.functions.sum;
 import static org.apache.spark.sql.functions.when;
@@ -24,6 +25,7 @@ import org.apache.spark.sql.expressions.WindowSpec;
 import org.apache.spark.sql.types.DataType;
 import org.apache.spark.sql.types.DataTypes;
 import org.apache.spark.sql.types.NumericType;
+import org.apache.spark.sql.types.StringType;
 import org.apache.spark.sql.types.StructField;
 import org.apache.spark.sql.types.StructType;
 import org.starderive.physics.Band;
@@ -41,12 +43,14 @@ import org.starderive.udf.StarMonteCarloUdf;
  *   <li>join policy (two tables): a full outer join on the star id, copy by copy — the k-th row of an id in the
  *       astrometry table meets the k-th row of that id in the photometry table (copies ordered by their content, so
  *       the pairing is deterministic). An id present on one side only gives a row with the other side's columns
- *       null; an id repeated k times on one side and j times on the other gives max(k, j) rows. No input row is
- *       lost or multiplied. Columns present in both tables (other than the id) are taken from the astrometry table
- *       where it has the row, else from the photometry table;</li>
+ *       null; an id repeated k times on one side and j times on the other gives max(k, j) rows. A missing id
+ *       ({@link #idMissing}) matches nothing, not even another missing id: each such row comes out alone. No input
+ *       row is lost or multiplied. Columns present in both tables (other than the id) are taken from the astrometry
+ *       table where it has the row, else from the photometry table;</li>
  *   <li>the survey's columns are mapped to the canonical inputs (units converted) as the config says, and checked:
  *       a missing mapped column or a non-numeric one stops the job;</li>
- *   <li>ids occurring more than once are flagged {@code DUPLICATE_ID} and every copy kept;</li>
+ *   <li>ids occurring more than once are flagged {@code DUPLICATE_ID} and every copy kept; rows whose id is missing
+ *       are flagged {@code ID_MISSING} (never {@code DUPLICATE_ID}) and kept;</li>
  *   <li>the UDF adds the derived columns, each with its unit/UCD/description metadata.</li>
  * </ol>
  */
@@ -68,6 +72,19 @@ public final class DerivePipeline {
         return JobException.input("Input " + table + ": missing column '" + column + "' (rule: the column for " + what + " must exist)");
     }
 
+    /**
+     * A missing star id: null, or — for a text id — empty or white space only (Unicode White_Space: spaces, tabs,
+     * line breaks, no-break spaces). Such a row cannot be joined back to its source, so it is flagged
+     * {@code ID_MISSING}, never counted as a duplicate and never paired with another row. Treating blank text as no
+     * id is common practice (no published source), as for {@code String.isBlank}.
+     */
+    public static Column idMissing(Column id, DataType idType) {
+        if (idType instanceof StringType) {
+            return id.isNull().or(id.rlike("(?U)^\\s*$"));
+        }
+        return id.isNull();
+    }
+
     private static void requireNumeric(StructType schema, String table, String column, String what) {
         if (!schema.getFieldIndex(column).isDefined()) {
             throw missing(table, column, what);
@@ -79,7 +96,7 @@ public final class DerivePipeline {
         }
     }
 
-    /** Joins astrometry and photometry by the policy above; adds the duplicate marker. */
+    /** Joins astrometry and photometry by the policy above (missing ids paired with nothing); adds the duplicate marker. */
     public Dataset<Row> join(InputTable astro, InputTable phot) {
         Dataset<Row> a = astro.data();
         Dataset<Row> p = phot.data();
@@ -97,7 +114,12 @@ public final class DerivePipeline {
         }
         a = withOccurrence(a, "a");
         p = withOccurrence(p, "p");
-        Column cond = a.col(idColumn).eqNullSafe(p.col(idColumn)).and(a.col(OCC_COL).equalTo(p.col(OCC_COL)));
+        // equalTo, not eqNullSafe: a null id meets nothing; a blank text id equals another blank one, so it is
+        // excluded explicitly (an id equal to a non-missing one is not missing either)
+        Column cond = a.col(idColumn).equalTo(p.col(idColumn)).and(a.col(OCC_COL).equalTo(p.col(OCC_COL)));
+        if (ta instanceof StringType) {
+            cond = cond.and(not(idMissing(a.col(idColumn), ta)));
+        }
         Dataset<Row> j = a.join(p, cond, "full_outer");
         Set<String> aCols = new LinkedHashSet<>(List.of(astro.data().columns()));
         Set<String> pCols = new LinkedHashSet<>(List.of(phot.data().columns()));
@@ -119,7 +141,10 @@ public final class DerivePipeline {
         return j.select(sel.toArray(new Column[0]));
     }
 
-    /** Numbers the copies of each id (deterministic order: by content) and marks ids with more than one copy. */
+    /**
+     * Numbers the copies of each id (deterministic order: by content) and marks ids with more than one copy; a
+     * missing id is never marked (its rows are ID_MISSING instead), however many rows share it.
+     */
     private Dataset<Row> withOccurrence(Dataset<Row> d, String side) {
         List<Column> order = new ArrayList<>();
         for (StructField f : d.schema().fields()) {
@@ -129,11 +154,12 @@ public final class DerivePipeline {
         }
         WindowSpec byId = Window.partitionBy(col(idColumn));
         WindowSpec ordered = byId.orderBy(order.toArray(new Column[0]));
+        Column missing = idMissing(col(idColumn), d.schema().apply(idColumn).dataType());
         return d.withColumn(OCC_COL, row_number().over(ordered))
-                .withColumn(DUP_COL, count(lit(1)).over(byId).gt(1));
+                .withColumn(DUP_COL, count(lit(1)).over(byId).gt(1).and(not(missing)));
     }
 
-    /** What one pass over a single table's ids found: its census and how many ids occur more than once. */
+    /** What one pass over a single table's ids found: its census and how many (non-missing) ids occur more than once. */
     public static final class IdScan {
         public final RowCensus census;
         public final long repeatedIds;
@@ -159,22 +185,26 @@ public final class DerivePipeline {
         Dataset<Row> counts = d.groupBy(col(idColumn)).agg(count(lit(1)).as("n"));
         Column n = col("n");
         Column id = col(idColumn);
+        DataType idType = d.schema().apply(idColumn).dataType();
+        Column present = not(idMissing(id, idType));
+        Column key = RowCensus.key(id, idType);
         Row r = counts.agg(coalesce(sum(n), lit(0L)),
-                coalesce(sum(n.multiply(RowCensus.lo(id))), lit(0L)),
-                coalesce(sum(n.multiply(RowCensus.hi(id))), lit(0L)),
-                coalesce(sum(when(n.gt(1).and(id.isNotNull()), 1L).otherwise(0L)), lit(0L))).first();
+                coalesce(sum(n.multiply(RowCensus.lo(key))), lit(0L)),
+                coalesce(sum(n.multiply(RowCensus.hi(key))), lit(0L)),
+                coalesce(sum(when(n.gt(1).and(present), 1L).otherwise(0L)), lit(0L))).first();
         return new IdScan(new RowCensus(r.getLong(0), r.getLong(1), r.getLong(2)), r.getLong(3), counts);
     }
 
     /**
      * Marks duplicate ids of a single table: the repeated ids (from {@link #scanIds}) joined back — collected and
-     * broadcast when there are at most 10⁶ of them. Null ids are never marked (null matches nothing).
+     * broadcast when there are at most 10⁶ of them. Missing ids ({@link #idMissing}) are never marked.
      */
     public Dataset<Row> markDuplicates(Dataset<Row> d, IdScan scan) {
         if (scan.repeatedIds == 0) {
             return d.withColumn(DUP_COL, lit(false));
         }
-        Dataset<Row> dups = scan.counts.filter(col("n").gt(1).and(col(idColumn).isNotNull()))
+        Column present = not(idMissing(col(idColumn), scan.counts.schema().apply(idColumn).dataType()));
+        Dataset<Row> dups = scan.counts.filter(col("n").gt(1).and(present))
                 .select(col(idColumn).as("__dup_id"), lit(true).as(DUP_COL));
         Dataset<Row> small;
         if (scan.repeatedIds <= 1_000_000) {
@@ -273,7 +303,7 @@ public final class DerivePipeline {
 
     /**
      * Input columns passed through, then every derived column with its metadata; the duplicate marker becomes the
-     * DUPLICATE_ID flag bit.
+     * DUPLICATE_ID flag bit, a missing id ({@link #idMissing}) the ID_MISSING bit.
      */
     public Dataset<Row> derive(Dataset<Row> withDup, String table) {
         StructType schema = withDup.schema();
@@ -312,15 +342,21 @@ public final class DerivePipeline {
             }
         }
         long dupMask = QualityFlag.DUPLICATE_ID.mask();
+        long missingMask = QualityFlag.ID_MISSING.mask();
         Column dup = col(DUP_COL);
+        Column missing = idMissing(col(idColumn), schema.apply(idColumn).dataType());
         for (DerivedColumn c : DerivedSchema.COLUMNS) {
             Column v = col(d + "." + c.name());
             if (c.name().equals("flags")) {
                 v = when(dup, v.bitwiseOR(lit(dupMask))).otherwise(v);
+                v = when(missing, v.bitwiseOR(lit(missingMask))).otherwise(v);
             } else if (c.name().equals("flag_names")) {
-                // DUPLICATE_ID is the highest bit: appending keeps the names in bit order
+                // DUPLICATE_ID (bit 20) and ID_MISSING (bit 21) are the highest bits, above every flag of the
+                // physics core: appending them in this order keeps the names in bit order
                 v = when(dup, org.apache.spark.sql.functions.array_union(v,
                         org.apache.spark.sql.functions.array(lit(QualityFlag.DUPLICATE_ID.name())))).otherwise(v);
+                v = when(missing, org.apache.spark.sql.functions.array_union(v,
+                        org.apache.spark.sql.functions.array(lit(QualityFlag.ID_MISSING.name())))).otherwise(v);
             }
             sel.add(v.as(c.name(), DerivedSchema.metadata(c)));
         }

@@ -163,7 +163,11 @@ public final class QaReport {
         return res;
     }
 
-    /** Flags after which a star's L or Teff must not be trusted: left out of the "trusted" HR diagram. */
+    /**
+     * Flags after which a star's L or Teff must not be trusted: left out of the "trusted" HR diagram. ID_MISSING is
+     * not one: such a row is never paired with another, so its numbers come from its own columns; what it lacks is a
+     * way back to its source.
+     */
     static final long UNTRUSTED = QualityFlag.PARALLAX_LOW_SNR.mask() | QualityFlag.PARALLAX_NONPOSITIVE.mask()
             | QualityFlag.INPUT_INVALID.mask() | QualityFlag.MAGNITUDE_SENTINEL.mask() | QualityFlag.COLOUR_OUT_OF_RANGE.mask()
             | QualityFlag.TEFF_EXTRAPOLATED.mask() | QualityFlag.TEFF_COLOURS_DISAGREE.mask() | QualityFlag.BC_UNRELIABLE.mask()

@@ -1,6 +1,7 @@
 package org.starderive.job;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.nio.file.Files;
@@ -14,6 +15,7 @@ import java.util.function.Consumer;
 import org.apache.spark.sql.Row;
 import org.apache.spark.sql.RowFactory;
 import org.apache.spark.sql.SparkSession;
+import org.apache.spark.sql.types.DataTypes;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.io.TempDir;
 import org.starderive.physics.QualityFlag;
@@ -24,13 +26,14 @@ import org.starderive.udf.DerivedSchema;
  * The row-level half of the bad-input matrix (docs/bad-input-matrix.md): one table, one row per case, one run of
  * the job. Every row must come out exactly once, with the expected flag, and the run must succeed; a bad value that
  * is to be ignored must leave every derived value as it is for the same row without that value. The dataset-level
- * half (refused before anything is written) is {@link DatasetErrorsTest}.
+ * half (refused before anything is written) is {@link DatasetErrorsTest}. The star id is text, so that a null, an
+ * empty and a blank id can each be a case; every row is known by its id.
  */
 class BadInputMatrixTest {
     @TempDir
     Path tmp;
 
-    /** Id of the row without the bad value of case id k: k + this. */
+    /** Id of the row without the bad value of case id k: (k + this) as text. */
     private static final long WITHOUT_ID_OFFSET = 1_000_000L;
 
     /** Columns of TestCatalogs.schema(), by name. */
@@ -73,7 +76,7 @@ class BadInputMatrixTest {
     /**
      * The cases. A bad value that must be ignored carries {@code ignoredLike(row without it)}; missing values (null
      * parallax, V, E(B-V), everything), valid measurements that are flagged (zero or negative parallax, colours no
-     * relation covers) and the duplicated id have nothing to ignore.
+     * relation covers), the duplicated id and the missing ids have nothing to ignore.
      */
     static List<Case> cases() {
         List<Case> c = new ArrayList<>();
@@ -133,7 +136,12 @@ class BadInputMatrixTest {
                 r[i] = null;
             }
         }, QualityFlag.PARALLAX_MISSING, QualityFlag.PHOTOMETRY_MISSING));
-        c.add(new Case("duplicated id", r -> r[0] = 1L, QualityFlag.DUPLICATE_ID));
+        c.add(new Case("duplicated id", r -> r[0] = "1", QualityFlag.DUPLICATE_ID));
+        // a row that cannot be joined back to its source: kept, flagged, never a duplicate of another missing id;
+        // empty or blank text as no id is common practice (no published source)
+        c.add(new Case("id null", r -> r[0] = null, QualityFlag.ID_MISSING));
+        c.add(new Case("id empty", r -> r[0] = "", QualityFlag.ID_MISSING));
+        c.add(new Case("id blank (white space only)", r -> r[0] = " \t ", QualityFlag.ID_MISSING));
         return c;
     }
 
@@ -147,59 +155,67 @@ class BadInputMatrixTest {
         for (int i = 0; i < ref.length; i++) {
             ref[i] = base.get(i);
         }
-        ref[0] = 1L;
+        ref[0] = "1";
         ref[COLS.indexOf("ebv")] = 0.0;
         ref[COLS.indexOf("feh")] = 0.0;
         rows.add(RowFactory.create(ref.clone()));
-        Map<Long, Case> byId = new LinkedHashMap<>();
+        // by the id the case row ends up with: "100" + k, or the missing id itself (null, "", blank: one row each)
+        Map<String, Case> byId = new LinkedHashMap<>();
         for (int k = 0; k < cases.size(); k++) {
             Object[] r = ref.clone();
-            r[0] = 100L + k;
+            r[0] = String.valueOf(100L + k);
             cases.get(k).mutate.accept(r);
             rows.add(RowFactory.create(r));
             if (!cases.get(k).name.equals("duplicated id")) {
-                byId.put(100L + k, cases.get(k));
+                byId.put((String) r[0], cases.get(k));
             }
             if (cases.get(k).without != null) {
                 Object[] w = ref.clone();
-                w[0] = WITHOUT_ID_OFFSET + 100L + k;
+                w[0] = String.valueOf(WITHOUT_ID_OFFSET + 100L + k);
                 cases.get(k).without.accept(w);
                 rows.add(RowFactory.create(w));
             }
         }
         Path in = tmp.resolve("in");
         Path out = tmp.resolve("out");
-        TestCatalogs.writeParquet(spark, rows, in);
+        spark.createDataFrame(rows, TestCatalogs.schema(DataTypes.StringType)).repartition(2).write().partitionBy("tile")
+                .parquet(in.toString());
         CliRunner r = CliRunner.run("derive", "--input", in.toString(), "--output", out.toString());
         assertEquals(0, r.exitCode, r.toString());
 
-        Map<Long, List<Long>> flagsById = new HashMap<>();
+        Map<String, List<Long>> flagsById = new HashMap<>();
         for (Row row : spark.read().parquet(out.toString()).select("star_id", "flags").collectAsList()) {
-            flagsById.computeIfAbsent(row.getLong(0), x -> new ArrayList<>()).add(row.getLong(1));
+            flagsById.computeIfAbsent(row.getString(0), x -> new ArrayList<>()).add(row.getLong(1));
         }
         assertEquals(rows.size(), flagsById.values().stream().mapToInt(List::size).sum(), "every row once");
-        for (Map.Entry<Long, Case> e : byId.entrySet()) {
+        for (Map.Entry<String, Case> e : byId.entrySet()) {
             List<Long> f = flagsById.get(e.getKey());
             assertEquals(1, f.size(), e.getValue().name);
             for (QualityFlag q : e.getValue().expect) {
                 assertTrue(q.isSet(f.get(0)), e.getValue().name + " should carry " + q + ", has " + QualityFlag.names(f.get(0)));
+            }
+            // the job's own flags only where the case asks for them: no missing id is a duplicate, no real id missing
+            for (QualityFlag q : List.of(QualityFlag.DUPLICATE_ID, QualityFlag.ID_MISSING)) {
+                if (!List.of(e.getValue().expect).contains(q)) {
+                    assertFalse(q.isSet(f.get(0)), e.getValue().name + " should not carry " + q);
+                }
             }
         }
         // a bad value that is ignored leaves no trace in any derived value: each equals the one of the same row
         // without that value (only the flags differ, by design)
         List<String> derived = new ArrayList<>(DerivedSchema.names());
         derived.removeAll(List.of("flags", "flag_names"));
-        Map<Long, Row> derivedById = new HashMap<>();
+        Map<String, Row> derivedById = new HashMap<>();
         for (Row row : spark.read().parquet(out.toString()).select("star_id", derived.toArray(new String[0])).collectAsList()) {
-            derivedById.put(row.getLong(0), row);
+            derivedById.put(row.getString(0), row);
         }
         int compared = 0;
-        for (Map.Entry<Long, Case> e : byId.entrySet()) {
+        for (Map.Entry<String, Case> e : byId.entrySet()) {
             if (e.getValue().without == null) {
                 continue;
             }
             Row bad = derivedById.get(e.getKey());
-            Row without = derivedById.get(WITHOUT_ID_OFFSET + e.getKey());
+            Row without = derivedById.get(String.valueOf(WITHOUT_ID_OFFSET + Long.parseLong(e.getKey())));
             for (int i = 0; i < derived.size(); i++) {
                 assertEquals(without.get(i + 1), bad.get(i + 1), e.getValue().name + ": " + derived.get(i)
                         + " differs from the row without the bad value, so the bad value was used");
@@ -208,8 +224,8 @@ class BadInputMatrixTest {
         }
         assertEquals(21, compared, "cases checked against the row without their bad value");
         // the duplicated id: the reference row and its copy, both kept, both flagged
-        assertEquals(2, flagsById.get(1L).size());
-        for (long f : flagsById.get(1L)) {
+        assertEquals(2, flagsById.get("1").size());
+        for (long f : flagsById.get("1")) {
             assertTrue(QualityFlag.DUPLICATE_ID.isSet(f));
         }
     }

@@ -11,6 +11,8 @@ import java.sql.DriverManager;
 import java.sql.ResultSet;
 import java.sql.Statement;
 import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.Collections;
 import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
@@ -20,6 +22,7 @@ import org.apache.spark.sql.Dataset;
 import org.apache.spark.sql.Row;
 import org.apache.spark.sql.RowFactory;
 import org.apache.spark.sql.SparkSession;
+import org.apache.spark.sql.types.DataType;
 import org.apache.spark.sql.types.DataTypes;
 import org.apache.spark.sql.types.StructType;
 import org.junit.jupiter.api.Test;
@@ -54,6 +57,14 @@ class DeriveCommandTest {
     }
 
     private static Double box(double v) { return Double.isNaN(v) ? null : v; }
+
+    private static String readString(Path p) {
+        try {
+            return Files.readString(p);
+        } catch (java.io.IOException e) {
+            throw new java.io.UncheckedIOException(e);
+        }
+    }
 
     @Test
     void partitionedParquetEndToEnd() throws Exception {
@@ -203,6 +214,201 @@ class DeriveCommandTest {
         assertEquals(List.of(8.0, 8.1, 8.2), back.filter("star_id = 4").orderBy("parallax_mas").select("parallax_mas")
                 .collectAsList().stream().map(x -> x.getDouble(0)).collect(Collectors.toList()));
         assertEquals(2, back.filter("star_id = 4 AND mag_v IS NOT NULL").count());
+    }
+
+    /** The test's own rule for a missing id (null, or text that is empty or white space only). */
+    private static boolean missingId(Object id) {
+        return id == null || (id instanceof String
+                && ((String) id).chars().allMatch(ch -> Character.isWhitespace(ch) || Character.isSpaceChar(ch)));
+    }
+
+    /** The summary's line for a flag: "  NAME  count". */
+    private static String summaryLine(QualityFlag f, long rows) {
+        return String.format("  %-22s %,d%n", f.name(), rows);
+    }
+
+    /**
+     * One table, rows whose id is null, empty or blank (spaces, a tab, a no-break space) among real ids, one of them
+     * repeated. Every row comes out once; the missing ids are ID_MISSING and never DUPLICATE_ID, however many rows
+     * share a null or a blank; the repeated real id is still DUPLICATE_ID. An empty or blank text id counts as no id:
+     * common practice (no published source), as Java's String.isBlank.
+     */
+    @Test
+    void rowsWithoutIdInOneTableAreKeptOnceAndFlaggedIdMissing() {
+        List<Row> rows = TestCatalogs.rows(12, 0);
+        List<String> ids = Arrays.asList("s0", "s1", null, null, "", "", "   ", "\t", "\u00a0", "s9", "s9", "s11");
+        Path in = tmp.resolve("in");
+        TestCatalogs.frameWithIds(spark, rows, ids, DataTypes.StringType).repartition(2).write().partitionBy("tile")
+                .parquet(in.toString());
+        Path out = tmp.resolve("out");
+        CliRunner r = CliRunner.run("derive", "--input", in.toString(), "--output", out.toString());
+        assertEquals(0, r.exitCode, r.toString());
+        assertTrue(r.out.contains("12 rows in, 12 rows out"), r.out);
+        assertTrue(r.out.contains(summaryLine(QualityFlag.ID_MISSING, 7)), r.out);
+        assertTrue(r.out.contains(summaryLine(QualityFlag.DUPLICATE_ID, 2)), r.out);
+
+        // row i is known by its parallax error (0.02 + 0.001 i, TestCatalogs): each must come out exactly once
+        Dataset<Row> back = spark.read().parquet(out.toString());
+        Map<Double, List<Row>> byErr = back.select("parallax_err_mas", "star_id", "flags", "flag_names").collectAsList()
+                .stream().collect(Collectors.groupingBy(x -> x.getDouble(0)));
+        assertEquals(12, byErr.size());
+        for (int i = 0; i < rows.size(); i++) {
+            List<Row> got = byErr.get(rows.get(i).getDouble(3));
+            assertEquals(1, got.size(), "row " + i + " once");
+            Row g = got.get(0);
+            assertEquals(ids.get(i), g.isNullAt(1) ? null : g.getString(1), "id passed through unchanged");
+            long f = g.getLong(2);
+            assertEquals(missingId(ids.get(i)), QualityFlag.ID_MISSING.isSet(f), "row " + i + " " + QualityFlag.names(f));
+            assertEquals(i == 9 || i == 10, QualityFlag.DUPLICATE_ID.isSet(f), "row " + i + " " + QualityFlag.names(f));
+            // the names are those of the bits, in bit order (ID_MISSING, the highest bit, last)
+            assertEquals(QualityFlag.names(f), g.getList(3));
+        }
+        // the manifest counts them too
+        String manifest = readString(out.resolve(RunManifest.FILE_NAME));
+        assertTrue(manifest.contains("\"ID_MISSING\" : 7"), manifest);
+
+        // CSV output: Spark writes "" for an empty or blank text (it trims) and reads "" back as null; the row check
+        // before the commit must still find every row (the census hashes every missing id as null)
+        Path csv = tmp.resolve("out-csv");
+        CliRunner rc = CliRunner.run("derive", "--input", in.toString(), "--output", csv.toString(), "--output-format", "csv");
+        assertEquals(0, rc.exitCode, rc.toString());
+        assertTrue(rc.out.contains(summaryLine(QualityFlag.ID_MISSING, 7)), rc.out);
+        Dataset<Row> csvBack = spark.read().option("header", "true").csv(csv.toString());
+        assertEquals(12, csvBack.count());
+        assertEquals(7, csvBack.filter("flag_names LIKE '%ID_MISSING'").count());
+    }
+
+    /** A numeric id can only be missing by being null: same rules as for text ids. */
+    @Test
+    void nullNumericIdsInOneTableAreFlaggedIdMissingNotDuplicate() {
+        List<Row> rows = TestCatalogs.rows(6, 0);
+        List<Long> ids = Arrays.asList(0L, null, 2L, null, null, 5L);
+        Path in = tmp.resolve("in");
+        TestCatalogs.frameWithIds(spark, rows, ids, DataTypes.LongType).write().parquet(in.toString());
+        Path out = tmp.resolve("out");
+        CliRunner r = CliRunner.run("derive", "--input", in.toString(), "--output", out.toString());
+        assertEquals(0, r.exitCode, r.toString());
+        assertTrue(r.out.contains("6 rows in, 6 rows out"), r.out);
+        assertTrue(r.out.contains(summaryLine(QualityFlag.ID_MISSING, 3)), r.out);
+        assertFalse(r.out.contains("DUPLICATE_ID"), r.out);
+        Dataset<Row> back = spark.read().parquet(out.toString());
+        assertEquals(3, back.filter("star_id IS NULL AND flags & " + QualityFlag.ID_MISSING.mask() + " <> 0").count());
+        assertEquals(0, back.filter("star_id IS NOT NULL AND flags & " + QualityFlag.ID_MISSING.mask() + " <> 0").count());
+        assertEquals(3, back.filter("array_contains(flag_names, 'ID_MISSING')").count());
+    }
+
+    /** The astrometry table (id, parallax 10 + i) and the photometry table (id, V 10 + i/10, Ks) of a join test. */
+    private CliRunner joinWithIds(DataType idType, List<?> astroIds, List<?> photIds, Path out) {
+        StructType as = new StructType().add("star_id", idType).add("parallax_mas", DataTypes.DoubleType)
+                .add("parallax_err_mas", DataTypes.DoubleType);
+        StructType ps = new StructType().add("star_id", idType).add("mag_v", DataTypes.DoubleType)
+                .add("mag_v_err", DataTypes.DoubleType).add("mag_ks", DataTypes.DoubleType).add("mag_ks_err", DataTypes.DoubleType);
+        List<Row> a = new ArrayList<>();
+        for (int i = 0; i < astroIds.size(); i++) {
+            a.add(RowFactory.create(astroIds.get(i), 10.0 + i, 0.1));
+        }
+        List<Row> p = new ArrayList<>();
+        for (int i = 0; i < photIds.size(); i++) {
+            p.add(RowFactory.create(photIds.get(i), 10.0 + 0.1 * i, 0.01, 8.5 + 0.1 * i, 0.02));
+        }
+        Path ain = out.resolveSibling(out.getFileName() + "-astro");
+        Path pin = out.resolveSibling(out.getFileName() + "-phot");
+        spark.createDataFrame(a, as).repartition(2).write().parquet(ain.toString());
+        spark.createDataFrame(p, ps).repartition(2).write().parquet(pin.toString());
+        return CliRunner.run("derive", "--input", ain.toString(), "--photometry", pin.toString(), "--join-on", "star_id",
+                "--output", out.toString());
+    }
+
+    /**
+     * Checks a join: every astrometry row and every photometry row comes out exactly once; a row with a missing id is
+     * alone (the other table's columns null), keeps its id as it was and is ID_MISSING, not DUPLICATE_ID; a real id
+     * held k and j times gives max(k, j) rows, none ID_MISSING.
+     */
+    private void assertMissingIdsStandAlone(List<?> astroIds, List<?> photIds, Path out) {
+        List<Row> back = spark.read().parquet(out.toString())
+                .select("star_id", "parallax_mas", "parallax_err_mas", "mag_v", "mag_ks", "flags").collectAsList();
+        long missingRows = astroIds.stream().filter(DeriveCommandTest::missingId).count()
+                + photIds.stream().filter(DeriveCommandTest::missingId).count();
+        long paired = astroIds.stream().filter(x -> !missingId(x)).distinct()
+                .mapToLong(x -> Math.min(Collections.frequency(astroIds, x), Collections.frequency(photIds, x))).sum();
+        assertEquals(astroIds.size() + photIds.size() - paired, back.size(), "rows out");
+        for (int i = 0; i < astroIds.size(); i++) {
+            double plx = 10.0 + i;
+            List<Row> got = back.stream().filter(x -> !x.isNullAt(1) && x.getDouble(1) == plx).collect(Collectors.toList());
+            assertEquals(1, got.size(), "astrometry row " + i + " once");
+            Row g = got.get(0);
+            long f = g.getLong(5);
+            assertEquals(astroIds.get(i), g.get(0), "astrometry row " + i + ": id as it was");
+            if (missingId(astroIds.get(i))) {
+                assertTrue(QualityFlag.ID_MISSING.isSet(f), "astrometry row " + i + " " + QualityFlag.names(f));
+                assertFalse(QualityFlag.DUPLICATE_ID.isSet(f), "astrometry row " + i);
+                assertTrue(g.isNullAt(3) && g.isNullAt(4), "astrometry row " + i + " paired with photometry: " + g);
+            } else {
+                assertFalse(QualityFlag.ID_MISSING.isSet(f), "astrometry row " + i);
+            }
+        }
+        for (int i = 0; i < photIds.size(); i++) {
+            double v = 10.0 + 0.1 * i;
+            List<Row> got = back.stream().filter(x -> !x.isNullAt(3) && x.getDouble(3) == v).collect(Collectors.toList());
+            assertEquals(1, got.size(), "photometry row " + i + " once");
+            Row g = got.get(0);
+            long f = g.getLong(5);
+            assertEquals(photIds.get(i), g.get(0), "photometry row " + i + ": id as it was");
+            if (missingId(photIds.get(i))) {
+                assertTrue(QualityFlag.ID_MISSING.isSet(f), "photometry row " + i + " " + QualityFlag.names(f));
+                assertFalse(QualityFlag.DUPLICATE_ID.isSet(f), "photometry row " + i);
+                assertTrue(g.isNullAt(1) && g.isNullAt(2), "photometry row " + i + " paired with astrometry: " + g);
+                assertTrue(QualityFlag.PARALLAX_MISSING.isSet(f), "photometry row " + i + " " + QualityFlag.names(f));
+            } else {
+                assertFalse(QualityFlag.ID_MISSING.isSet(f), "photometry row " + i);
+            }
+        }
+        assertEquals(missingRows, back.stream().filter(x -> QualityFlag.ID_MISSING.isSet(x.getLong(5))).count());
+    }
+
+    /**
+     * Two tables with text ids missing on one side only (blank in astrometry, tab in photometry) and on both (null
+     * and empty in each): no missing id meets another, each row stays alone and is ID_MISSING. Before, nulls paired
+     * with nulls and empties with empties, merging unrelated stars.
+     */
+    @Test
+    void joinNeverPairsMissingTextIds() {
+        List<String> a = Arrays.asList("1", "2", null, null, "", "   ");
+        List<String> p = Arrays.asList("1", "3", null, "", "", "\t");
+        Path out = tmp.resolve("out");
+        CliRunner r = joinWithIds(DataTypes.StringType, a, p, out);
+        assertEquals(0, r.exitCode, r.toString());
+        // 1 paired, 2 and 3 alone, 4 + 4 rows without id
+        assertTrue(r.out.contains("11 rows in, 11 rows out"), r.out);
+        assertTrue(r.out.contains(summaryLine(QualityFlag.ID_MISSING, 8)), r.out);
+        assertFalse(r.out.contains("DUPLICATE_ID"), r.out);
+        assertMissingIdsStandAlone(a, p, out);
+    }
+
+    /** The same with numeric ids (null the only missing one), missing on both sides; and on one side only. */
+    @Test
+    void joinNeverPairsNullNumericIds() {
+        List<Long> a = Arrays.asList(1L, null, null, 4L, 4L);
+        List<Long> p = Arrays.asList(null, 1L, 4L);
+        Path out = tmp.resolve("out");
+        CliRunner r = joinWithIds(DataTypes.LongType, a, p, out);
+        assertEquals(0, r.exitCode, r.toString());
+        // 1 paired, 4 twice (copy by copy, DUPLICATE_ID), 3 rows without id
+        assertTrue(r.out.contains("6 rows in, 6 rows out"), r.out);
+        assertTrue(r.out.contains(summaryLine(QualityFlag.ID_MISSING, 3)), r.out);
+        assertTrue(r.out.contains(summaryLine(QualityFlag.DUPLICATE_ID, 2)), r.out);
+        Dataset<Row> back = spark.read().parquet(out.toString());
+        assertEquals(2, back.filter("star_id = 4 AND flags & " + QualityFlag.DUPLICATE_ID.mask() + " <> 0").count());
+        assertEquals(1, back.filter("star_id = 4 AND mag_v IS NOT NULL").count());
+        assertMissingIdsStandAlone(a, p, out);
+        // nulls on the astrometry side only
+        List<Long> a1 = Arrays.asList(1L, null, null);
+        List<Long> p1 = Arrays.asList(1L, 2L);
+        Path out1 = tmp.resolve("out1");
+        CliRunner r1 = joinWithIds(DataTypes.LongType, a1, p1, out1);
+        assertEquals(0, r1.exitCode, r1.toString());
+        assertTrue(r1.out.contains(summaryLine(QualityFlag.ID_MISSING, 2)), r1.out);
+        assertMissingIdsStandAlone(a1, p1, out1);
     }
 
     @Test

@@ -14,7 +14,9 @@ import org.apache.spark.sql.Dataset;
 import org.apache.spark.sql.Row;
 import org.apache.spark.sql.RowFactory;
 import org.apache.spark.sql.SparkSession;
+import org.apache.spark.sql.types.DataType;
 import org.apache.spark.sql.types.DataTypes;
+import org.apache.spark.sql.types.StructField;
 import org.apache.spark.sql.types.StructType;
 
 /**
@@ -42,6 +44,13 @@ final class TestCatalogs {
                 .add("feh", DataTypes.DoubleType, true);
     }
 
+    /** The same columns with a star id of the given type that may be null (the missing-id tests). */
+    static StructType schema(DataType idType) {
+        StructField[] f = schema().fields().clone();
+        f[0] = new StructField(f[0].name(), idType, true, f[0].metadata());
+        return new StructType(f);
+    }
+
     /** n stars over 3 tiles; every 7th row carries a defect. */
     static List<Row> rows(int n, long idOffset) {
         List<Row> rows = new ArrayList<>();
@@ -67,6 +76,23 @@ final class TestCatalogs {
 
     static Dataset<Row> frame(SparkSession spark, List<Row> rows) {
         return spark.createDataFrame(rows, schema());
+    }
+
+    /**
+     * The same rows with other star ids, of the given type and nullable: {@code ids.get(i)} replaces the id of
+     * {@code rows.get(i)} (null, empty or blank ids for the missing-id tests).
+     */
+    static Dataset<Row> frameWithIds(SparkSession spark, List<Row> rows, List<?> ids, DataType idType) {
+        List<Row> out = new ArrayList<>();
+        for (int i = 0; i < rows.size(); i++) {
+            Object[] v = new Object[rows.get(i).length()];
+            for (int k = 0; k < v.length; k++) {
+                v[k] = rows.get(i).get(k);
+            }
+            v[0] = ids.get(i);
+            out.add(RowFactory.create(v));
+        }
+        return spark.createDataFrame(out, schema(idType));
     }
 
     static void writeParquet(SparkSession spark, List<Row> rows, Path dir) {

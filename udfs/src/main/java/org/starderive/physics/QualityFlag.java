@@ -63,7 +63,13 @@ public enum QualityFlag {
      */
     HOT_TEFF_UNCERTAIN(18, "hot star whose Teff error exceeds hot_teff_err_frac_max of Teff (dereddening dominates)"),
     /** The star id occurs more than once in the input (set by the job, not by the physics core). */
-    DUPLICATE_ID(20, "the star id occurs more than once in the input; every copy is kept");
+    DUPLICATE_ID(20, "the star id occurs more than once in the input; every copy is kept"),
+    /**
+     * The star id is null, or (a text id) empty or white space only (set by the job, not by the physics core): the
+     * row is kept, alone — never paired in the two-table join, never {@link #DUPLICATE_ID} — but nothing ties it to
+     * its source row. Bit 19 is unused and stays so.
+     */
+    ID_MISSING(21, "the star id is null, empty or blank: the row is kept but cannot be joined back to its source");
 
     private static final QualityFlag[] VALUES = values();
 

@@ -343,5 +343,6 @@ class StarDeriverTest {
         assertEquals(7, COLOUR_OUT_OF_RANGE.bit());
         assertEquals(13, MASS_NOT_APPLICABLE.bit());
         assertEquals(20, DUPLICATE_ID.bit());
+        assertEquals(21, ID_MISSING.bit());
     }
 }
