@@ -16,7 +16,10 @@ public final class JobException extends RuntimeException {
          * file changed while the run read it (found just before the commit; nothing is committed).
          */
         INPUT(3),
-        /** The output location cannot be used (exists in fail mode, inside the input, not writable ...). */
+        /**
+         * The output location cannot be used (exists in fail mode, inside the input, not writable ...), another run
+         * holds its lease, or the storage failed while the output was written or committed (nothing is committed).
+         */
         OUTPUT(4),
         /** The written output failed the row-conservation check; it was not committed. */
         CONSERVATION(5);

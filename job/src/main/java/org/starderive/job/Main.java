@@ -12,7 +12,7 @@ import picocli.CommandLine.Option;
 /**
  * The {@code starderive} command line. {@code main} stays thin: parse, build the session, call the job, stop.
  * Exit codes: 0 success, 1 unexpected failure, 2 usage or configuration, 3 input dataset (also: an input file changed
- * while the run read it), 4 output location, 5 row conservation.
+ * while the run read it), 4 output location (also: another run holds the output, storage full or failing), 5 row conservation.
  */
 @Command(name = "starderive", mixinStandardHelpOptions = true, versionProvider = Main.Version.class,
         description = "Derived stellar parameters (distance, Teff, L, R, M, log g, angular diameter) with uncertainties and "

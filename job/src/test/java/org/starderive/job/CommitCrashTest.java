@@ -43,6 +43,57 @@ class CommitCrashTest {
     @AfterEach
     void clearHook() {
         TestHooks.commitStepHook = null;
+        TestHooks.beforeInputRecheck = null;
+    }
+
+    @Test
+    void failModeIsCheckedAgainAtTheCommit() throws Exception {
+        Path in = tmp.resolve("in");
+        TestCatalogs.writeParquet(SharedSpark.spark(), TestCatalogs.rows(12, 1), in);
+        Path out = tmp.resolve("out");
+        // something (not a starderive run: it would need the lease) creates the output while the run computes
+        TestHooks.beforeInputRecheck = () -> {
+            try {
+                Files.createDirectories(out);
+                Files.writeString(out.resolve("someone-else.txt"), "x");
+            } catch (java.io.IOException e) {
+                throw new java.io.UncheckedIOException(e);
+            }
+        };
+        JobException e = assertThrows(JobException.class, () -> derive(in, out, OutputCommitter.Mode.FAIL));
+        assertEquals(4, e.kind().exitCode());
+        assertTrue(e.getMessage().contains("appeared while this run was writing"), e.getMessage());
+        try (Stream<Path> s = Files.list(out)) {
+            assertEquals(List.of("someone-else.txt"), s.map(p -> p.getFileName().toString()).collect(Collectors.toList()));
+        }
+    }
+
+    @Test
+    void aMoveRefusesAnExistingTargetInsteadOfNestingIntoIt() throws Exception {
+        Path in = tmp.resolve("in");
+        TestCatalogs.writeParquet(SharedSpark.spark(), TestCatalogs.rows(12, 1), in);
+        Path out = tmp.resolve("out");
+        // the folder appears between the commit's check and its move of the staging folder
+        TestHooks.commitStepHook = (i, step) -> {
+            if (step.startsWith("move ") && step.contains(".staging-") && step.endsWith("/out")) {
+                try {
+                    Files.createDirectories(out);
+                } catch (java.io.IOException e) {
+                    throw new java.io.UncheckedIOException(e);
+                }
+            }
+        };
+        JobException e = assertThrows(JobException.class, () -> derive(in, out, OutputCommitter.Mode.FAIL));
+        assertEquals(4, e.kind().exitCode());
+        assertTrue(e.getMessage().contains("commit failed") && e.getMessage().contains("undone"), e.getMessage());
+        try (Stream<Path> s = Files.list(out)) {
+            assertEquals(List.of(), s.collect(Collectors.toList()), "nothing moved into or nested inside the folder");
+        }
+        try (Stream<Path> s = Files.list(tmp)) {
+            assertEquals(List.of(), s.map(p -> p.getFileName().toString())
+                    .filter(n -> n.contains(".staging-") || n.contains(".commit-") || n.contains(".manifest-"))
+                    .collect(Collectors.toList()));
+        }
     }
 
     private static DeriveJob.Summary derive(Path in, Path out, OutputCommitter.Mode mode) {

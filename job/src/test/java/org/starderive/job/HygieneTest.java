@@ -33,10 +33,15 @@ class HygieneTest {
                 "--write-mode", "overwrite").exitCode);
         Map<String, String> after = new TreeMap<>(TestCatalogs.treeHash(tmp));
         after.keySet().removeIf(k -> k.startsWith("out/"));
+        // beside the output only the lease of the latest run stays (hidden), marked released (README, Reliability)
+        List<String> lease = after.keySet().stream().filter(k -> k.startsWith(".out.lease-")).sorted().collect(Collectors.toList());
+        assertEquals(List.of(".out.lease-0000000002", ".out.lease-0000000002.released"), lease);
+        after.keySet().removeAll(lease);
         assertEquals(before, after, "inputs, config and neighbours unchanged; nothing new beside the output");
         try (Stream<Path> s = Files.list(tmp)) {
-            List<String> names = s.map(p -> p.getFileName().toString()).sorted().collect(Collectors.toList());
-            assertEquals(List.of("c.yaml", "in", "neighbour.txt", "out"), names, "staging folders are gone after a run");
+            List<String> names = s.map(p -> p.getFileName().toString()).filter(n -> !n.startsWith(".out.lease-")).sorted()
+                    .collect(Collectors.toList());
+            assertEquals(List.of("c.yaml", "in", "neighbour.txt", "out"), names, "staging folders and journals are gone after a run");
         }
     }
 

@@ -36,7 +36,8 @@ class JobConfigTest {
                 "  distance_method: edsd",
                 "  relations: [C10/V-Ks]",
                 "output:",
-                "  compression: zstd"), "test.yaml");
+                "  compression: zstd",
+                "  lease_stale_after_s: 600"), "test.yaml");
         assertEquals("source_id", c.idColumn());
         assertEquals(1000.0, c.parallaxUnit().toMas);
         assertEquals("Vmag", c.explicitBands().get(Band.V).magColumn);
@@ -47,6 +48,7 @@ class JobConfigTest {
         assertEquals(DeriveSettings.DistanceMethod.EDSD, c.settings().distanceMethod());
         assertEquals(1, Long.bitCount(c.settings().relationMask()));
         assertEquals("zstd", c.compression());
+        assertEquals(600.0, c.leaseStaleAfterS());
     }
 
     @Test
@@ -54,6 +56,7 @@ class JobConfigTest {
         JobConfig c = JobConfig.parse("", "empty.yaml");
         assertEquals("star_id", c.idColumn());
         assertEquals(DeriveSettings.RV_DEFAULT, c.settings().rv());
+        assertEquals(OutputLease.STALE_AFTER_S_DEFAULT, c.leaseStaleAfterS());
     }
 
     private static String rejected(String yaml) {
@@ -76,6 +79,7 @@ class JobConfigTest {
         assertTrue(rejected("physics: {relations: [C99/X-Y]}").contains("Unknown colour-Teff relation"));
         assertTrue(rejected("physics: {prior_length_kpc: 0}").contains("must be finite and > 0"));
         assertTrue(rejected("output: {compression: lz77}").contains("compression"));
+        assertTrue(rejected("output: {lease_stale_after_s: 5}").contains("output.lease_stale_after_s"));
         assertTrue(rejected("[1, 2]").contains("top level"));
         assertTrue(rejected("physics: {r_v: 3.1").contains("not valid YAML"));
     }

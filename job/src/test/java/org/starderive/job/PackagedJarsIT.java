@@ -124,6 +124,28 @@ class PackagedJarsIT {
         Process p = new ProcessBuilder(java(), "-jar", prop("starderive.localJar"), "derive", "--master", "local[2]",
                 "--input", in.toString(), "--output", out.toString(), "--write-mode", "overwrite")
                 .redirectErrorStream(true).redirectOutput(log.toFile()).start();
+        // while the child holds the output's lease, a run here is refused (exit 4) naming it
+        String childRun = null;
+        long leaseDeadline = System.nanoTime() + TimeUnit.MINUTES.toNanos(2);
+        while (childRun == null && System.nanoTime() < leaseDeadline && p.isAlive()) {
+            try (Stream<Path> s = Files.list(tmp)) {
+                for (Path f : s.filter(x -> x.getFileName().toString().matches("\\.out\\.lease-\\d+")).collect(Collectors.toList())) {
+                    String text = Files.readString(f);
+                    if (text.contains("\npid=" + p.pid() + "\n")) {
+                        childRun = text.replaceAll("(?s).*\nrun_id=([^\n]+)\n.*", "$1");
+                    }
+                }
+            } catch (java.nio.file.NoSuchFileException e) {
+                // a lease file went while we looked: look again
+            }
+            Thread.sleep(50);
+        }
+        assertTrue(childRun != null, "the child took the lease: " + Files.readString(log));
+        CliRunner refused = CliRunner.run("derive", "--input", in.toString(), "--output", out.toString(), "--write-mode", "overwrite");
+        assertEquals(4, refused.exitCode, refused.toString());
+        assertTrue(refused.err.contains("is being written by run " + childRun + " (host ") && refused.err.contains("pid " + p.pid()),
+                refused.toString());
+
         boolean killedWhileWriting = false;
         long deadline = System.nanoTime() + TimeUnit.MINUTES.toNanos(3);
         while (System.nanoTime() < deadline && p.isAlive()) {
@@ -147,8 +169,15 @@ class PackagedJarsIT {
         assertTrue(killedWhileWriting, "the child was killed while writing: " + Files.readString(log));
         assertEquals(before, TestCatalogs.treeHash(out), "previous output intact after SIGKILL");
 
-        // a rerun succeeds and gives the same content
+        // a rerun takes the dead run's lease over at once (its process is gone from this host), commits, and gives the
+        // same content
         assertEquals(0, Main.execute("derive", "--input", in.toString(), "--output", out.toString(), "--write-mode", "overwrite"));
+        try (Stream<Path> s = Files.list(tmp)) {
+            List<String> leases = s.map(x -> x.getFileName().toString()).filter(n -> n.matches("\\.out\\.lease-\\d+"))
+                    .collect(Collectors.toList());
+            assertEquals(1, leases.size(), "the killed run's lease was replaced: " + leases);
+            assertTrue(!Files.readString(tmp.resolve(leases.get(0))).contains("run_id=" + childRun + "\n"), leases.toString());
+        }
         List<Row> again = spark.read().parquet(out.toString()).drop("flag_names").orderBy("star_id").limit(2000).collectAsList();
         assertEquals(first, again);
         assertEquals(600_000, spark.read().parquet(out.toString()).count());
