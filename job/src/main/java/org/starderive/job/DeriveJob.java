@@ -183,7 +183,7 @@ public final class DeriveJob {
             throw JobException.input("Input " + req.input + ": the table has no rows (rule: the input must not be empty)");
         }
         String tableName = twoTables ? "astrometry+photometry" : astro.role() + " " + astro.paths();
-        Dataset<Row> derived = pipeline.derive(joined, tableName);
+        Dataset<Row> derived = pipeline.derive(joined, tableName, partitionColumns);
         DataType idType = derived.schema().apply(idColumn).dataType();
         seconds.put("check_inputs", (System.nanoTime() - t0) / 1e9);
 

@@ -306,6 +306,16 @@ public final class DerivePipeline {
      * DUPLICATE_ID flag bit, a missing id ({@link #idMissing}) the ID_MISSING bit.
      */
     public Dataset<Row> derive(Dataset<Row> withDup, String table) {
+        return derive(withDup, table, List.of());
+    }
+
+    /**
+     * As {@link #derive(Dataset, String)}, in the configured output layout: with layout {@code derived} only the id and
+     * the {@code keep} columns (the partition columns) are passed through; with column group {@code core} only
+     * {@link DerivedSchema#CORE} of the derived columns (plus every Monte Carlo column when asked for); with
+     * {@code float32} the derived floating-point values are stored in 32 bits (see {@link DerivedSchema#float32Reason}).
+     */
+    public Dataset<Row> derive(Dataset<Row> withDup, String table, List<String> keep) {
         StructType schema = withDup.schema();
         List<String> derivedNames = new ArrayList<>(DerivedSchema.names());
         if (config.monteCarlo()) {
@@ -336,16 +346,21 @@ public final class DerivePipeline {
             withResult = withResult.withColumn(mc, StarMonteCarloUdf.function(config.settings(), config.draws(), config.seed()).apply(mcStruct));
         }
         List<Column> sel = new ArrayList<>();
+        boolean full = config.layout().equals("full");
         for (String c : schema.fieldNames()) {
-            if (!c.equals(DUP_COL)) {
+            if (!c.equals(DUP_COL) && (full || c.equals(idColumn) || keep.contains(c))) {
                 sel.add(col(c));
             }
         }
+        boolean core = config.columnGroup().equals("core");
         long dupMask = QualityFlag.DUPLICATE_ID.mask();
         long missingMask = QualityFlag.ID_MISSING.mask();
         Column dup = col(DUP_COL);
         Column missing = idMissing(col(idColumn), schema.apply(idColumn).dataType());
         for (DerivedColumn c : DerivedSchema.COLUMNS) {
+            if (core && !DerivedSchema.CORE.contains(c.name())) {
+                continue;
+            }
             Column v = col(d + "." + c.name());
             if (c.name().equals("flags")) {
                 v = when(dup, v.bitwiseOR(lit(dupMask))).otherwise(v);
@@ -358,18 +373,26 @@ public final class DerivePipeline {
                 v = when(missing, org.apache.spark.sql.functions.array_union(v,
                         org.apache.spark.sql.functions.array(lit(QualityFlag.ID_MISSING.name())))).otherwise(v);
             }
-            sel.add(v.as(c.name(), DerivedSchema.metadata(c)));
+            sel.add(stored(v, c).as(c.name(), DerivedSchema.metadata(c)));
         }
         if (config.monteCarlo()) {
             for (DerivedColumn c : StarMonteCarloUdf.COLUMNS) {
-                sel.add(col(mc + "." + c.name()).as(c.name(), DerivedSchema.metadata(c)));
+                sel.add(stored(col(mc + "." + c.name()), c).as(c.name(), DerivedSchema.metadata(c)));
             }
         }
         return withResult.select(sel.toArray(new Column[0]));
     }
 
+    /** The value as stored: a 32-bit float where the config asks for it and the column allows it. */
+    private Column stored(Column v, DerivedColumn c) {
+        return config.float32() && DerivedSchema.float32Reason(c) != null ? v.cast("float") : v;
+    }
+
     /** CSV cannot hold arrays: flag names become one '|'-separated text. */
     public static Dataset<Row> forCsv(Dataset<Row> d) {
+        if (!d.schema().getFieldIndex("flag_names").isDefined()) {
+            return d;
+        }
         return d.withColumn("flag_names", concat_ws("|", col("flag_names")));
     }
 

@@ -51,6 +51,9 @@ import org.yaml.snakeyaml.events.ScalarEvent;
  * output:
  *   compression: snappy           # snappy | zstd | gzip | none
  *   lease_stale_after_s: 120      # a run's lease on its output not renewed this long is taken over
+ *   layout: derived               # derived (id, partition columns, derived columns) | full (input columns too)
+ *   columns: all                  # all | core (main parameters, errors, flags)
+ *   float32: true                 # derived values in 32-bit floats (parallax_corr_mas stays 64-bit)
  * </pre>
  */
 public final class JobConfig {
@@ -114,6 +117,22 @@ public final class JobConfig {
     public static final String KEY_PHYSICS = "physics";
     public static final String KEY_OUTPUT = "output";
     public static final String COMPRESSION_DEFAULT = "snappy";
+    /** Output layouts: {@code derived} (id, partition columns, derived columns) or {@code full} (every input column too). */
+    public static final String LAYOUT_DEFAULT = "derived";
+    /** Derived column groups: {@code core} or {@code all}. */
+    public static final String COLUMNS_DEFAULT = "all";
+
+    static void checkLayout(String v, String option) {
+        if (!v.equals("derived") && !v.equals("full")) {
+            throw JobException.config("Invalid " + option + ": " + v + " (must be derived or full)");
+        }
+    }
+
+    static void checkColumns(String v, String option) {
+        if (!v.equals("core") && !v.equals("all")) {
+            throw JobException.config("Invalid " + option + ": " + v + " (must be core or all)");
+        }
+    }
     public static final String KEY_UNCERTAINTY = "uncertainty";
     /** analytic (first order) or montecarlo (percentiles over draws). */
     public static final String UNCERTAINTY_METHOD_DEFAULT = "analytic";
@@ -128,7 +147,7 @@ public final class JobConfig {
             "bands", "ebv", "ebv_err", "av", "feh", "feh_err");
     private static final Set<String> BAND_KEYS = Set.of("mag", "err", "err_value");
     private static final Set<String> SOURCE_KEYS = Set.of("column", "value");
-    private static final Set<String> OUTPUT_KEYS = Set.of("compression", "lease_stale_after_s");
+    private static final Set<String> OUTPUT_KEYS = Set.of("compression", "lease_stale_after_s", "layout", "columns", "float32");
     private static final Set<String> COMPRESSIONS = Set.of("snappy", "zstd", "gzip", "none");
     /** physics keys, each one line of DeriveSettings. */
     private static final Set<String> PHYSICS_KEYS = Set.of("parallax_zero_point_mas", "parallax_snr_min",
@@ -151,6 +170,9 @@ public final class JobConfig {
     private final DeriveSettings settings;
     private final String compression;
     private final double leaseStaleAfterS;
+    private String layout;
+    private String columnGroup;
+    private final boolean float32;
     private final JsonNode resolved;
     private String uncertaintyMethod;
     private int draws;
@@ -220,6 +242,15 @@ public final class JobConfig {
         if (!COMPRESSIONS.contains(compression)) {
             throw bad(KEY_OUTPUT + ".compression", compression, "must be one of " + new TreeSet<>(COMPRESSIONS));
         }
+        layout = text(out, KEY_OUTPUT, "layout", LAYOUT_DEFAULT);
+        if (!layout.equals("derived") && !layout.equals("full")) {
+            throw bad(KEY_OUTPUT + ".layout", layout, "must be derived or full");
+        }
+        columnGroup = text(out, KEY_OUTPUT, "columns", COLUMNS_DEFAULT);
+        if (!columnGroup.equals("core") && !columnGroup.equals("all")) {
+            throw bad(KEY_OUTPUT + ".columns", columnGroup, "must be core or all");
+        }
+        float32 = bool(out, KEY_OUTPUT, "float32", true);
         leaseStaleAfterS = number(out, KEY_OUTPUT, "lease_stale_after_s", OutputLease.STALE_AFTER_S_DEFAULT);
         if (!(leaseStaleAfterS >= 10 && leaseStaleAfterS <= 86_400)) {
             throw bad(KEY_OUTPUT + ".lease_stale_after_s", String.valueOf(leaseStaleAfterS),
@@ -472,6 +503,28 @@ public final class JobConfig {
     public DeriveSettings settings() { return settings; }
     public String compression() { return compression; }
 
+    /** {@code derived} or {@code full}. */
+    public String layout() { return layout; }
+
+    /** {@code core} or {@code all}. */
+    public String columnGroup() { return columnGroup; }
+
+    /** Derived floating-point values stored as 32-bit floats (except those in {@code DerivedSchema.KEEP_DOUBLE}). */
+    public boolean float32() { return float32; }
+
+    /** Overrides layout and column group from the command line. */
+    public JobConfig withLayout(String layoutOrNull, String columnsOrNull) {
+        if (layoutOrNull != null) {
+            checkLayout(layoutOrNull, "--layout");
+            layout = layoutOrNull;
+        }
+        if (columnsOrNull != null) {
+            checkColumns(columnsOrNull, "--columns");
+            columnGroup = columnsOrNull;
+        }
+        return this;
+    }
+
     /** Seconds without renewal after which another run's lease on the output is stale (see {@link OutputLease}). */
     public double leaseStaleAfterS() { return leaseStaleAfterS; }
 
@@ -505,6 +558,9 @@ public final class JobConfig {
         s.put("parallax_unit", parallaxUnit.name().toLowerCase());
         s.put("compression", compression);
         s.put("lease_stale_after_s", leaseStaleAfterS);
+        s.put("layout", layout);
+        s.put("columns", columnGroup);
+        s.put("float32", float32);
         ObjectNode un = n.putObject("uncertainty_resolved");
         un.put("method", uncertaintyMethod);
         if (monteCarlo()) {

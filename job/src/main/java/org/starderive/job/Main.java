@@ -78,6 +78,16 @@ public final class Main implements Runnable {
                         + "the partitions present in the input). Default: ${DEFAULT-VALUE}.")
         String writeMode;
 
+        @Option(names = "--layout", paramLabel = "LAYOUT",
+                description = "derived (the id, partition columns and derived columns: a table to join back on the id) or full "
+                        + "(every input column too). Default: output.layout of the config, else derived.")
+        String layout;
+
+        @Option(names = "--columns", paramLabel = "GROUP",
+                description = "all derived columns, or core (distance, Teff, L, R, M, density, log g, angular diameter with "
+                        + "errors, class, regime and the flag mask). Default: output.columns of the config, else all.")
+        String columns;
+
         @Option(names = "--uncertainty", paramLabel = "METHOD",
                 description = "analytic (first order) or montecarlo (16/50/84th percentiles over draws, in addition). "
                         + "Default: uncertainty.method of the config, else analytic.")
@@ -109,6 +119,7 @@ public final class Main implements Runnable {
                 throw JobException.config("Invalid --input-format: " + inputFormat + " (must be parquet or csv)");
             }
             JobConfig cfg = config == null ? JobConfig.defaults() : JobConfig.load(config);
+            cfg.withLayout(layout, columns);
             if (uncertainty != null || draws != null || seed != null) {
                 cfg.withUncertainty(uncertainty != null ? uncertainty : cfg.uncertaintyMethod(),
                         draws != null ? draws : cfg.draws(), seed != null ? seed : cfg.seed(), "--");

@@ -154,7 +154,7 @@ public final class RecoveryReport {
         for (String c : List.of("star_id", "flags", "dist_pc", "teff_k", "parallax_err_mas")) {
             if (!d.schema().getFieldIndex(c).isDefined()) {
                 throw JobException.input("Derived catalogue " + derivedDir + ": missing column '" + c
-                        + "' (rule: recovery reads a catalogue derived from the synthetic survey)");
+                        + "' (rule: recovery reads a catalogue derived from the synthetic survey with --layout full, which keeps the observed parallax error)");
             }
         }
         if (!t.schema().getFieldIndex("true_teff_k").isDefined()) {

@@ -34,6 +34,7 @@ import org.starderive.physics.StarDeriver;
 import org.starderive.physics.StarInput;
 import org.starderive.physics.StarResult;
 import org.starderive.testing.SharedSpark;
+import org.starderive.udf.DerivedSchema;
 
 class DeriveCommandTest {
     @TempDir
@@ -57,6 +58,8 @@ class DeriveCommandTest {
     }
 
     private static Double box(double v) { return Double.isNaN(v) ? null : v; }
+
+    private static Double f32(double v) { return Double.isNaN(v) ? null : (double) (float) v; }
 
     private static String readString(Path p) {
         try {
@@ -94,8 +97,9 @@ class DeriveCommandTest {
         List<Row> expected = new ArrayList<>();
         for (Row row : rows) {
             StarResult res = d.derive(toInput(row), new StarResult());
-            expected.add(RowFactory.create(row.getLong(0), box(res.distPc), box(res.teffK), box(res.lumLsun),
-                    box(res.radiusRsun), box(res.massMsun), res.flags));
+            // stored as 32-bit floats (output.float32, the default): the core's doubles rounded once
+            expected.add(RowFactory.create(row.getLong(0), f32(res.distPc), f32(res.teffK), f32(res.lumLsun),
+                    f32(res.radiusRsun), f32(res.massMsun), res.flags));
         }
         StructType es = new StructType().add("star_id", DataTypes.LongType).add("dist_pc", DataTypes.DoubleType)
                 .add("teff_k", DataTypes.DoubleType).add("lum_lsun", DataTypes.DoubleType).add("radius_rsun", DataTypes.DoubleType)
@@ -103,9 +107,17 @@ class DeriveCommandTest {
         Dataset<Row> exp = spark.createDataFrame(expected, es).orderBy("star_id");
         // same columns, schema without the unit metadata (checked separately below)
         Dataset<Row> got = spark.createDataFrame(spark.read().parquet(out.toString())
-                .select("star_id", "dist_pc", "teff_k", "lum_lsun", "radius_rsun", "mass_msun", "flags").javaRDD(), es)
+                .selectExpr("star_id", "CAST(dist_pc AS DOUBLE)", "CAST(teff_k AS DOUBLE)", "CAST(lum_lsun AS DOUBLE)",
+                        "CAST(radius_rsun AS DOUBLE)", "CAST(mass_msun AS DOUBLE)", "flags").javaRDD(), es)
                 .orderBy("star_id");
-        SharedSpark.suite().assertDataFrameApproximateEquals(exp, got, 1e-9);
+        SharedSpark.suite().assertDataFrameApproximateEquals(exp, got, 0.0);
+
+        // the default layout: the id, the partition column and the derived columns, nothing else of the input
+        List<String> outCols = List.of(spark.read().parquet(out.toString()).columns());
+        List<String> wanted = new ArrayList<>(List.of("star_id"));
+        wanted.addAll(DerivedSchema.names());
+        wanted.add("tile");
+        assertEquals(wanted, outCols);
 
         // units metadata survives in the Parquet schema (read back by Spark)
         StructType back = spark.read().parquet(out.toString()).schema();
@@ -124,7 +136,8 @@ class DeriveCommandTest {
             while (rs.next()) {
                 types.put(rs.getString(1), rs.getString(2));
             }
-            assertEquals("DOUBLE", types.get("teff_k"));
+            assertEquals("FLOAT", types.get("teff_k"));
+            assertEquals("DOUBLE", types.get("parallax_corr_mas"), "a parallax keeps 64 bits");
             assertEquals("BIGINT", types.get("flags"));
             assertEquals("VARCHAR[]", types.get("flag_names"));
             assertTrue(types.containsKey("tile"));
@@ -154,7 +167,7 @@ class DeriveCommandTest {
         Path in = tmp.resolve("in.csv");
         Path out = tmp.resolve("out");
         TestCatalogs.frame(spark, TestCatalogs.rows(20, 1)).coalesce(1).write().option("header", "true").csv(in.toString());
-        CliRunner r = CliRunner.run("derive", "--input", in.toString(), "--input-format", "csv",
+        CliRunner r = CliRunner.run("derive", "--layout", "full", "--input", in.toString(), "--input-format", "csv",
                 "--output", out.toString(), "--output-format", "csv");
         assertEquals(0, r.exitCode, r.toString());
         Dataset<Row> back = spark.read().option("header", "true").csv(out.toString());
@@ -171,7 +184,7 @@ class DeriveCommandTest {
         rows.add(rows.get(2)); // exact duplicate row
         rows.add(TestCatalogs.rows(10, 1).get(4)); // same id again
         TestCatalogs.writeParquet(spark, rows, in);
-        CliRunner r = CliRunner.run("derive", "--input", in.toString(), "--output", out.toString());
+        CliRunner r = CliRunner.run("derive", "--layout", "full", "--input", in.toString(), "--output", out.toString());
         assertEquals(0, r.exitCode, r.toString());
         Dataset<Row> back = spark.read().parquet(out.toString());
         assertEquals(12, back.count());
@@ -195,7 +208,7 @@ class DeriveCommandTest {
         Path out = tmp.resolve("out");
         spark.createDataFrame(a, as).write().parquet(ain.toString());
         spark.createDataFrame(p, ps).write().parquet(pin.toString());
-        CliRunner r = CliRunner.run("derive", "--input", ain.toString(), "--photometry", pin.toString(),
+        CliRunner r = CliRunner.run("derive", "--layout", "full", "--input", ain.toString(), "--photometry", pin.toString(),
                 "--join-on", "star_id", "--output", out.toString());
         assertEquals(0, r.exitCode, r.toString());
         Dataset<Row> back = spark.read().parquet(out.toString());
@@ -241,7 +254,7 @@ class DeriveCommandTest {
         TestCatalogs.frameWithIds(spark, rows, ids, DataTypes.StringType).repartition(2).write().partitionBy("tile")
                 .parquet(in.toString());
         Path out = tmp.resolve("out");
-        CliRunner r = CliRunner.run("derive", "--input", in.toString(), "--output", out.toString());
+        CliRunner r = CliRunner.run("derive", "--layout", "full", "--input", in.toString(), "--output", out.toString());
         assertEquals(0, r.exitCode, r.toString());
         assertTrue(r.out.contains("12 rows in, 12 rows out"), r.out);
         assertTrue(r.out.contains(summaryLine(QualityFlag.ID_MISSING, 7)), r.out);
@@ -270,7 +283,7 @@ class DeriveCommandTest {
         // CSV output: Spark writes "" for an empty or blank text (it trims) and reads "" back as null; the row check
         // before the commit must still find every row (the census hashes every missing id as null)
         Path csv = tmp.resolve("out-csv");
-        CliRunner rc = CliRunner.run("derive", "--input", in.toString(), "--output", csv.toString(), "--output-format", "csv");
+        CliRunner rc = CliRunner.run("derive", "--layout", "full", "--input", in.toString(), "--output", csv.toString(), "--output-format", "csv");
         assertEquals(0, rc.exitCode, rc.toString());
         assertTrue(rc.out.contains(summaryLine(QualityFlag.ID_MISSING, 7)), rc.out);
         Dataset<Row> csvBack = spark.read().option("header", "true").csv(csv.toString());
@@ -286,7 +299,7 @@ class DeriveCommandTest {
         Path in = tmp.resolve("in");
         TestCatalogs.frameWithIds(spark, rows, ids, DataTypes.LongType).write().parquet(in.toString());
         Path out = tmp.resolve("out");
-        CliRunner r = CliRunner.run("derive", "--input", in.toString(), "--output", out.toString());
+        CliRunner r = CliRunner.run("derive", "--layout", "full", "--input", in.toString(), "--output", out.toString());
         assertEquals(0, r.exitCode, r.toString());
         assertTrue(r.out.contains("6 rows in, 6 rows out"), r.out);
         assertTrue(r.out.contains(summaryLine(QualityFlag.ID_MISSING, 3)), r.out);
@@ -315,7 +328,7 @@ class DeriveCommandTest {
         Path pin = out.resolveSibling(out.getFileName() + "-phot");
         spark.createDataFrame(a, as).repartition(2).write().parquet(ain.toString());
         spark.createDataFrame(p, ps).repartition(2).write().parquet(pin.toString());
-        return CliRunner.run("derive", "--input", ain.toString(), "--photometry", pin.toString(), "--join-on", "star_id",
+        return CliRunner.run("derive", "--layout", "full", "--input", ain.toString(), "--photometry", pin.toString(), "--join-on", "star_id",
                 "--output", out.toString());
     }
 
@@ -416,7 +429,7 @@ class DeriveCommandTest {
         Path in = tmp.resolve("in");
         Path out = tmp.resolve("out");
         TestCatalogs.writeParquet(spark, TestCatalogs.rows(30, 1), in);
-        assertEquals(0, CliRunner.run("derive", "--input", in.toString(), "--output", out.toString()).exitCode);
+        assertEquals(0, CliRunner.run("derive", "--layout", "full", "--input", in.toString(), "--output", out.toString()).exitCode);
         Map<String, String> before = TestCatalogs.treeHash(out);
 
         // reprocess tile 1 only, with changed data
@@ -430,7 +443,7 @@ class DeriveCommandTest {
             return RowFactory.create(v);
         }).collect(Collectors.toList());
         TestCatalogs.writeParquet(spark, tile1, in1);
-        CliRunner r = CliRunner.run("derive", "--input", in1.toString(), "--output", out.toString(), "--write-mode", "replace-partitions");
+        CliRunner r = CliRunner.run("derive", "--layout", "full", "--input", in1.toString(), "--output", out.toString(), "--write-mode", "replace-partitions");
         assertEquals(0, r.exitCode, r.toString());
         assertTrue(r.out.contains("partitions replaced: [tile=1]"), r.out);
         Map<String, String> after = TestCatalogs.treeHash(out);
@@ -456,5 +469,37 @@ class DeriveCommandTest {
         assertEquals(0, r.exitCode, r.toString());
         List<Row> second = spark.read().parquet(out.toString()).drop("flag_names").orderBy("star_id").collectAsList();
         assertEquals(first, second, "same input and config give the same output");
+    }
+
+    /** Layouts and column groups (README, Output): what each writes, and that the data dictionary follows. */
+    @Test
+    void layoutsAndColumnGroupsWriteWhatTheySay() throws Exception {
+        Path in = tmp.resolve("in");
+        TestCatalogs.writeParquet(spark, TestCatalogs.rows(12, 1), in);
+
+        Path core = tmp.resolve("core");
+        assertEquals(0, CliRunner.run("derive", "--input", in.toString(), "--output", core.toString(), "--columns", "core").exitCode);
+        java.util.Set<String> expected = new java.util.TreeSet<>(DerivedSchema.CORE);
+        expected.add("star_id");
+        expected.add("tile");
+        assertEquals(expected, new java.util.TreeSet<>(List.of(spark.read().parquet(core.toString()).columns())));
+        String dict = Files.readString(core.resolve(DataDictionary.FILE_NAME));
+        assertTrue(dict.contains("| `teff_k` | float | K |") && !dict.contains("`abs_mag_v`"), dict);
+        assertTrue(dict.contains("## Why 32-bit floats") && dict.contains("| `teff_k` | errors >= 20 K"), dict);
+
+        Path full = tmp.resolve("full");
+        Path cfg = Files.writeString(tmp.resolve("f64.yaml"), "output: {float32: false}\n");
+        assertEquals(0, CliRunner.run("derive", "--input", in.toString(), "--output", full.toString(), "--layout", "full",
+                "--config", cfg.toString()).exitCode);
+        StructType fs = spark.read().parquet(full.toString()).schema();
+        for (String c : TestCatalogs.schema().fieldNames()) {
+            assertTrue(fs.getFieldIndex(c).isDefined(), "input column " + c + " passed through");
+        }
+        assertEquals(DataTypes.DoubleType, fs.apply("teff_k").dataType(), "float32: false keeps 64 bits");
+        assertTrue(!Files.readString(full.resolve(DataDictionary.FILE_NAME)).contains("## Why 32-bit floats"));
+
+        CliRunner bad = CliRunner.run("derive", "--input", in.toString(), "--output", tmp.resolve("x").toString(), "--layout", "wide");
+        assertEquals(2, bad.exitCode, bad.toString());
+        assertTrue(bad.err.contains("--layout: wide (must be derived or full)"), bad.err);
     }
 }

@@ -44,7 +44,7 @@ class MonteCarloJobTest {
     }
 
     private static Dataset<Row> derive(Path input, Path out, int draws, long seed) {
-        int code = Main.execute("derive", "--input", input.toString(), "--config", CONFIG, "--output", out.toString(),
+        int code = Main.execute("derive", "--layout", "full", "--input", input.toString(), "--config", CONFIG, "--output", out.toString(),
                 "--uncertainty", "montecarlo", "--draws", String.valueOf(draws), "--seed", String.valueOf(seed));
         assertEquals(0, code);
         return spark.read().parquet(out.toString());
@@ -103,7 +103,7 @@ class MonteCarloJobTest {
         Path config = tmp.resolve("kestrel-posterior.yaml");
         Files.writeString(config, "physics:\n  parallax_zero_point_mas: -0.02\n  distance_snr_min: 4\n");
         Path out = tmp.resolve("mc-posterior");
-        assertEquals(0, Main.execute("derive", "--input", survey.resolve("stars").toString(), "--config", config.toString(),
+        assertEquals(0, Main.execute("derive", "--layout", "full", "--input", survey.resolve("stars").toString(), "--config", config.toString(),
                 "--output", out.toString(), "--uncertainty", "montecarlo", "--draws", "64", "--seed", "2"));
         Dataset<Row> j = spark.read().parquet(out.toString())
                 .join(spark.read().parquet(survey.resolve("truth").toString()).drop("tile"), "star_id")

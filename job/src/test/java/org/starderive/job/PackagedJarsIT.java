@@ -188,7 +188,7 @@ class PackagedJarsIT {
         Path log = tmp.resolve("help.log");
         assertEquals(0, run(List.of(java(), "-jar", prop("starderive.localJar"), "derive", "--help"), log));
         String h = Files.readString(log).replaceAll("\\s+", " ");
-        for (String opt : List.of("--input", "--output", "--photometry", "--join-on", "--config", "--input-format",
+        for (String opt : List.of("--input", "--output", "--photometry", "--join-on", "--config", "--layout", "--columns", "--input-format",
                 "--output-format", "--write-mode", "--master")) {
             assertTrue(h.contains(opt), opt + " in help: " + h);
         }

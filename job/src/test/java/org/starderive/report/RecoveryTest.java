@@ -34,7 +34,7 @@ class RecoveryTest {
         Path survey = tmp.resolve("survey");
         SampleSurvey.write(spark, STARS, 3, survey.toString(), 2, SaveMode.ErrorIfExists);
         Path derived = tmp.resolve("derived");
-        int code = Main.execute("derive", "--input", survey.resolve("astrometry").toString(),
+        int code = Main.execute("derive", "--layout", "full", "--input", survey.resolve("astrometry").toString(),
                 "--photometry", survey.resolve("photometry").toString(), "--join-on", "star_id",
                 "--config", ProjectFiles.path("sample-survey", "config", "kestrel.yaml").toString(),
                 "--output", derived.toString());

@@ -69,6 +69,43 @@ public final class DerivedSchema {
         COLUMNS = Collections.unmodifiableList(c);
     }
 
+    /**
+     * The core group: the main parameters with their errors and the flag mask — what most users of a derived
+     * catalogue read (distance, extinction used, Teff, regime and class, M_bol, L, R, M, density, log g, angular
+     * diameter). Everything else (absolute magnitudes per band, BC, distance modulus, cross-checks, flag names ...) is
+     * in the full group.
+     */
+    public static final java.util.Set<String> CORE = java.util.Set.of(
+            "dist_pc", "dist_lo_pc", "dist_hi_pc", "dist_method", "ebv_used_mag", "lum_class", "regime",
+            "teff_k", "teff_err_k", "mbol", "mbol_err", "lum_lsun", "lum_err_lsun", "radius_rsun", "radius_err_rsun",
+            "mass_msun", "mass_err_msun", "density_kg_m3", "density_err_kg_m3", "logg_cgs", "logg_err_cgs",
+            "ang_diam_mas", "ang_diam_err_mas", "flags");
+
+    /** Derived values stored in 64 bits even when the output stores floats in 32: a parallax keeps its precision. */
+    public static final java.util.Set<String> KEEP_DOUBLE = java.util.Set.of("parallax_corr_mas");
+
+    /**
+     * Why a derived value can be stored as a 32-bit float (resolution 6·10⁻⁸ relative, 24-bit significand): its own
+     * uncertainty is orders of magnitude larger. Null for the columns kept in 64 bits or not floating point.
+     */
+    public static String float32Reason(DerivedColumn c) {
+        if (!c.sqlType().equals("double") || KEEP_DOUBLE.contains(c.name())) {
+            return null;
+        }
+        switch (c.unit()) {
+            case "mag":
+                return "errors >= 0.001 mag (photometry, distance modulus); float32 resolves 2e-6 mag at 30 mag";
+            case "K":
+                return "errors >= 20 K (relation scatter); float32 resolves 0.004 K at 50,000 K";
+            case "log(cm.s-2)":
+                return "errors >= 0.01 dex; float32 resolves 5e-7 dex";
+            case "":
+                return "a test statistic or a ratio; its own noise is far above 7 significant digits";
+            default:
+                return "relative error >= 1e-4 (sigma_parallax / parallax and beyond); float32 resolves 6e-8 relative";
+        }
+    }
+
     private static DerivedColumn d(String name, String unit, String ucd, String description) {
         return new DerivedColumn(name, "double", unit, ucd, description);
     }
