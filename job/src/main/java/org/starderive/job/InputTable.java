@@ -14,9 +14,7 @@ import java.util.TreeSet;
 import org.apache.hadoop.conf.Configuration;
 import org.apache.hadoop.fs.FileStatus;
 import org.apache.hadoop.fs.FileSystem;
-import org.apache.hadoop.fs.LocatedFileStatus;
 import org.apache.hadoop.fs.Path;
-import org.apache.hadoop.fs.RemoteIterator;
 import org.apache.parquet.hadoop.ParquetFileReader;
 import org.apache.parquet.hadoop.util.HadoopInputFile;
 import org.apache.spark.api.java.JavaRDD;
@@ -100,6 +98,27 @@ public final class InputTable {
      * with a hidden ({@code _} or {@code .}) segment below the folder. {@code mustExist} false (the re-check) treats a
      * path that has gone as holding no files, so that the comparison names the files that went with it.
      */
+    /**
+     * Every file under {@code dir}, depth first in name order, by {@code listStatus} — not {@code listFiles}, whose
+     * located statuses make Hadoop's local file system read each file's permissions by starting an {@code ls}
+     * process (seconds for a few hundred files); hidden folders are not entered.
+     */
+    private static List<FileStatus> walk(FileSystem fs, Path dir) throws IOException {
+        List<FileStatus> out = new ArrayList<>();
+        FileStatus[] children = fs.listStatus(dir);
+        java.util.Arrays.sort(children, java.util.Comparator.comparing(c -> c.getPath().getName()));
+        for (FileStatus c : children) {
+            if (c.isDirectory()) {
+                if (!hidden(c.getPath().getName())) {
+                    out.addAll(walk(fs, c.getPath()));
+                }
+            } else {
+                out.add(c);
+            }
+        }
+        return out;
+    }
+
     private static Listing list(Configuration conf, String role, List<String> paths, boolean mustExist) {
         Listing listing = new Listing();
         for (String p : paths) {
@@ -118,9 +137,7 @@ public final class InputTable {
                     continue;
                 }
                 String rootPath = fs.makeQualified(root).toUri().getPath();
-                RemoteIterator<LocatedFileStatus> it = fs.listFiles(root, true);
-                while (it.hasNext()) {
-                    LocatedFileStatus f = it.next();
+                for (FileStatus f : walk(fs, root)) {
                     String rel = f.getPath().toUri().getPath().substring(rootPath.length());
                     String[] segments = rel.replaceFirst("^/", "").split("/");
                     boolean skip = false;
