@@ -17,7 +17,7 @@ import picocli.CommandLine.Option;
 @Command(name = "starderive", mixinStandardHelpOptions = true, versionProvider = Main.Version.class,
         description = "Derived stellar parameters (distance, Teff, L, R, M, log g, angular diameter) with uncertainties and "
                 + "quality flags for survey catalogues, as an Apache Spark batch job.",
-        subcommands = {Main.Derive.class, Main.Sample.class, Main.Report.class, Main.Recovery.class, Main.Rewrite.class,
+        subcommands = {Main.Derive.class, Main.Export.class, Main.Sample.class, Main.Report.class, Main.Recovery.class, Main.Rewrite.class,
                 CommandLine.HelpCommand.class})
 public final class Main implements Runnable {
 
@@ -129,6 +129,71 @@ public final class Main implements Runnable {
                 PrintWriter out = spec.commandLine().getOut();
                 out.print(s.render());
                 out.flush();
+                return 0;
+            });
+        }
+    }
+
+    @Command(name = "export", mixinStandardHelpOptions = true, sortOptions = false,
+            description = "Write a derived catalogue, or a selection of it, to one FITS binary table or one VOTable, each "
+                    + "column with its unit (IVOA VOUnits), UCD and description, the run's provenance as table parameters. "
+                    + "The selection is collected in the driver's memory: refused above --max-rows, before anything is written.")
+    static final class Export implements Callable<Integer> {
+        @CommandLine.Spec
+        CommandLine.Model.CommandSpec spec;
+
+        @Option(names = "--catalog", required = true, paramLabel = "DIR", description = "Derived catalogue (output of derive).")
+        String catalog;
+
+        @Option(names = "--out", required = true, paramLabel = "FILE",
+                description = "File to write (on the driver's local file system; its folder must exist).")
+        Path out;
+
+        @Option(names = "--format", required = true, paramLabel = "FORMAT", description = "fits (binary table) or votable.")
+        String format;
+
+        @Option(names = "--exclude-flags", paramLabel = "MASK",
+                description = "Leave out rows with any of these quality flags: a bit mask (decimal or 0x hex) or flag names "
+                        + "separated by commas. Default: keep every row.")
+        String excludeFlags;
+
+        @Option(names = "--columns", paramLabel = "COLS", defaultValue = "all",
+                description = "all, core (id, partition columns, main parameters with errors and the flag mask) or column "
+                        + "names separated by commas. Default: ${DEFAULT-VALUE}.")
+        String columns;
+
+        @Option(names = "--limit", paramLabel = "N", description = "At most N rows, the first in the order of the id column.")
+        Long limit;
+
+        @Option(names = "--max-rows", paramLabel = "N", defaultValue = "1000000",
+                description = "Refuse (exit 2) a selection of more rows than this. Default: ${DEFAULT-VALUE}.")
+        long maxRows;
+
+        @Option(names = "--overwrite", description = "Replace the file if it exists. Default: refuse (exit 4).")
+        boolean overwrite;
+
+        @CommandLine.Mixin
+        SparkOptionsMixin spark = new SparkOptionsMixin();
+
+        @Override
+        public Integer call() {
+            CatalogExport.Request req = new CatalogExport.Request();
+            req.catalog = catalog;
+            req.out = out;
+            req.format = CatalogExport.Format.parse(format);
+            req.excludeFlags = CatalogExport.parseFlagMask(excludeFlags);
+            req.columns = columns;
+            req.limit = limit;
+            req.maxRows = maxRows;
+            req.overwrite = overwrite;
+            return Sessions.withSession(spark.master, "starderive export", session -> {
+                long t0 = System.nanoTime();
+                CatalogExport.Result r = CatalogExport.run(session, req);
+                PrintWriter w = spec.commandLine().getOut();
+                w.printf("starderive export: %,d rows, %d columns, %s, %,d bytes, %.1f s%n", r.rows, r.columns,
+                        req.format.name().toLowerCase(java.util.Locale.ROOT), r.bytes, (System.nanoTime() - t0) / 1e9);
+                w.println("file: " + r.file);
+                w.flush();
                 return 0;
             });
         }

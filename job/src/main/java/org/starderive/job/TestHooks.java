@@ -62,4 +62,17 @@ public final class TestHooks {
             h.accept(index, step);
         }
     }
+
+    /**
+     * Test-only: run by export after the temporary file is complete, just before the rename into place; a test makes
+     * it throw to prove that a failed export leaves no file and the previous one untouched. Null in production.
+     */
+    static volatile java.util.function.Consumer<java.nio.file.Path> beforeExportRename;
+
+    static void beforeExportRename(java.nio.file.Path tmp) throws java.io.IOException {
+        java.util.function.Consumer<java.nio.file.Path> h = beforeExportRename;
+        if (h != null) {
+            h.accept(tmp);
+        }
+    }
 }

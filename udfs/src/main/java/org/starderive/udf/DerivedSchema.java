@@ -56,11 +56,11 @@ public final class DerivedSchema {
         c.add(d("radius_err_rsun", "solRad", "stat.error;phys.size.radius", "1-sigma error of radius_rsun"));
         c.add(d("mass_msun", "solMass", "phys.mass", "main-sequence mass: from L (Eker et al. 2018), or from M_Ks for M dwarfs (Mann et al. 2019); main sequence only"));
         c.add(d("mass_err_msun", "solMass", "stat.error;phys.mass", "1-sigma error of mass_msun incl. the mass relation's scatter"));
-        c.add(d("density_kg_m3", "kg.m-3", "phys.density", "mean density"));
-        c.add(d("density_err_kg_m3", "kg.m-3", "stat.error;phys.density", "1-sigma error of density_kg_m3"));
+        c.add(d("density_kg_m3", "kg.m**-3", "phys.density", "mean density"));
+        c.add(d("density_err_kg_m3", "kg.m**-3", "stat.error;phys.density", "1-sigma error of density_kg_m3"));
         c.add(d("density_rho_sun", "", "phys.density;arith.ratio", "mean density in units of the mean solar density"));
-        c.add(d("logg_cgs", "log(cm.s-2)", "phys.gravity", "log10 surface gravity in cm s-2"));
-        c.add(d("logg_err_cgs", "log(cm.s-2)", "stat.error;phys.gravity", "1-sigma error of logg_cgs"));
+        c.add(d("logg_cgs", "log(cm.s**-2)", "phys.gravity", "log10 surface gravity in cm s-2"));
+        c.add(d("logg_err_cgs", "log(cm.s**-2)", "stat.error;phys.gravity", "1-sigma error of logg_cgs"));
         c.add(d("ang_diam_mas", "mas", "phys.angSize", "angular diameter from bolometric flux and Teff (Stefan-Boltzmann)"));
         c.add(d("ang_diam_err_mas", "mas", "stat.error;phys.angSize", "1-sigma error of ang_diam_mas"));
         c.add(d("ang_diam_sbr_mas", "mas", "phys.angSize", "cross-check: (V-Ks) surface-brightness diameter (Kervella et al. 2004), main sequence only"));
@@ -97,7 +97,7 @@ public final class DerivedSchema {
                 return "errors >= 0.001 mag (photometry, distance modulus); float32 resolves 2e-6 mag at 30 mag";
             case "K":
                 return "errors >= 20 K (relation scatter); float32 resolves 0.004 K at 50,000 K";
-            case "log(cm.s-2)":
+            case "log(cm.s**-2)":
                 return "errors >= 0.01 dex; float32 resolves 5e-7 dex";
             case "":
                 return "a test statistic or a ratio; its own noise is far above 7 significant digits";

@@ -30,7 +30,7 @@ public final class StarMonteCarloUdf implements UDF1<Row, Row> {
         {"lum", "lsun", "solLum", "phys.luminosity"},
         {"radius", "rsun", "solRad", "phys.size.radius"},
         {"mass", "msun", "solMass", "phys.mass"},
-        {"logg", "cgs", "log(cm.s-2)", "phys.gravity"},
+        {"logg", "cgs", "log(cm.s**-2)", "phys.gravity"},
         {"ang_diam", "mas", "mas", "phys.angSize"},
     };
     private static final String[] P = {"p16", "p50", "p84"};
