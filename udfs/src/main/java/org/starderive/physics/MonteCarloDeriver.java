@@ -187,11 +187,83 @@ public final class MonteCarloDeriver {
                 out[k][0] = out[k][1] = out[k][2] = Double.NaN;
                 continue;
             }
-            Arrays.sort(samples[k], 0, n);
-            out[k][0] = quantile(samples[k], n, StarDeriver.P16);
-            out[k][1] = quantile(samples[k], n, 0.5);
-            out[k][2] = quantile(samples[k], n, StarDeriver.P84);
+            selectQuantiles(samples[k], n, probs, out[k]);
         }
+    }
+
+    /**
+     * The type-6 quantiles ({@link #quantile}) at the increasing probabilities {@code p} of the first {@code n} values
+     * of {@code a}, into {@code q}, without sorting: each needs only two order statistics, found by selection
+     * (quickselect, Hoare 1961, Comm. ACM 4, 321, Algorithm 65 FIND) and the minimum of the values above. Reorders
+     * {@code a}. The same numbers as sorting and {@link #quantile}, at a fraction of the cost for a few percentiles
+     * of some hundred draws.
+     */
+    static void selectQuantiles(double[] a, int n, double[] p, double[] q) {
+        int from = 0;
+        for (int i = 0; i < p.length; i++) {
+            double h = (n + 1) * p[i] - 1;
+            int lo = h <= 0 ? 0 : h >= n - 1 ? n - 1 : (int) Math.floor(h);
+            select(a, from, n - 1, lo);
+            from = lo; // everything from lo on is at least a[lo]: later (higher) order statistics lie there
+            if (h <= 0 || h >= n - 1) {
+                q[i] = a[lo];
+                continue;
+            }
+            double next = a[lo + 1];
+            for (int j = lo + 2; j < n; j++) {
+                if (a[j] < next) {
+                    next = a[j];
+                }
+            }
+            q[i] = a[lo] + (h - lo) * (next - a[lo]);
+        }
+    }
+
+    /** Reorders a[left..right] so that a[k] is its (k − left)-th smallest, smaller ones before, larger ones after. */
+    private static void select(double[] a, int left, int right, int k) {
+        while (right - left > 16) {
+            int mid = (left + right) >>> 1;
+            // median of three as the pivot, moved to a[left]
+            if (a[mid] < a[left]) swap(a, mid, left);
+            if (a[right] < a[left]) swap(a, right, left);
+            if (a[right] < a[mid]) swap(a, right, mid);
+            swap(a, left, mid);
+            double pivot = a[left];
+            int i = left;
+            int j = right + 1;
+            while (true) {
+                do { i++; } while (i <= right && a[i] < pivot);
+                do { j--; } while (a[j] > pivot);
+                if (i >= j) {
+                    break;
+                }
+                swap(a, i, j);
+            }
+            swap(a, left, j); // the pivot is now at j: smaller before, larger after
+            if (j == k) {
+                return;
+            }
+            if (j < k) {
+                left = j + 1;
+            } else {
+                right = j - 1;
+            }
+        }
+        for (int i = left + 1; i <= right; i++) { // insertion sort of the small rest
+            double v = a[i];
+            int j = i - 1;
+            while (j >= left && a[j] > v) {
+                a[j + 1] = a[j];
+                j--;
+            }
+            a[j + 1] = v;
+        }
+    }
+
+    private static void swap(double[] a, int i, int j) {
+        double t = a[i];
+        a[i] = a[j];
+        a[j] = t;
     }
 
     private void add(int k, double v) {

@@ -111,4 +111,27 @@ class MonteCarloDeriverTest {
         assertEquals(target, sum / reps, 0.003, "type 6");
         assertTrue(target - sum7 / reps > 0.015, "type 7 shrinks the interval: " + sum7 / reps);
     }
+
+    @Test
+    void selectedQuantilesAreThoseOfTheSortedDraws() {
+        // reference: a full sort (java.util.Arrays.sort) and the type-6 rule of Hyndman & Fan 1996 on it; the
+        // selection must give the same numbers to the last bit, also with ties and for every n the job can meet
+        java.util.SplittableRandom r = new java.util.SplittableRandom(11);
+        double[] p = {StarDeriver.P16, 0.5, StarDeriver.P84};
+        double[] q = new double[3];
+        for (int n = 1; n <= 300; n++) {
+            for (int rep = 0; rep < 20; rep++) {
+                double[] a = new double[n + 5];
+                for (int k = 0; k < n; k++) {
+                    a[k] = rep % 3 == 0 ? r.nextInt(5) : rep % 3 == 1 ? r.nextGaussian() : Math.exp(3 * r.nextGaussian());
+                }
+                double[] sorted = Arrays.copyOf(a, n);
+                Arrays.sort(sorted);
+                MonteCarloDeriver.selectQuantiles(a, n, p, q);
+                for (int i = 0; i < 3; i++) {
+                    assertEquals(MonteCarloDeriver.quantile(sorted, n, p[i]), q[i], 0.0, "n=" + n + " p=" + p[i]);
+                }
+            }
+        }
+    }
 }
