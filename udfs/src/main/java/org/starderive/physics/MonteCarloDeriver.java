@@ -22,8 +22,9 @@ import org.apache.commons.rng.sampling.distribution.ZigguratSampler;
  * calibration, no distance below the distance minimum) gets no percentiles either: draws that scatter a colour into
  * a calibrated range would describe a truncated, biased sample, not the star. A star without a Teff therefore only
  * has its distance sampled, without the rest of the chain; a relation's scatter is drawn only where the star has
- * both its bands. Draws keep the star's luminosity class (dwarf or evolved, as the analytic chain classed it; a star
- * near the boundary is not reclassified draw by draw) and start the log g iteration at the star's log g. (All of this
+ * both its bands and only for the regimes its class blends (a dwarf never evaluates a giant relation). Draws keep
+ * the star's luminosity class (dwarf or evolved, as the analytic chain classed it; a star near the boundary is not
+ * reclassified draw by draw) and start the log g iteration at the star's log g. (All of this
  * keeps the cost down: profiled, the chain and the Gaussian draws are most of a draw's time.)
  *
  * <p>Reproducibility: the random stream of a star is a pure function of (run seed, star key) — a XoRoShiRo128++
@@ -105,16 +106,16 @@ public final class MonteCarloDeriver {
             finish(b, out);
             return;
         }
+        boolean evolved = b.lumClass == LuminosityClass.EVOLVED;
         int nRel = 0;
         for (int k = 0; k < relations.length; k++) {
             TeffRelation r = relations[k];
             boolean has = in.hasMag[r.blue().ordinal()] && in.hasMag[r.red().ordinal()];
             offsets[k] = 0;
-            if (has) {
+            if (has && evaluated(r.regime(), b.lumClass)) {
                 usedRelations[nRel++] = k;
             }
         }
-        boolean evolved = b.lumClass == LuminosityClass.EVOLVED;
         boolean vFromG = QualityFlag.V_FROM_G.isSet(b.flags);
         for (int d = 0; d < draws; d++) {
             // one standard normal per error source (ErrorSource); the chain applies z × σ
@@ -157,6 +158,19 @@ public final class MonteCarloDeriver {
             add(6, r.angDiamMas);
         }
         finish(b, out);
+    }
+
+    /**
+     * Whether a draw of a star of class {@code cls} can use a relation of {@code regime}: draws keep the star's class,
+     * and a main-sequence star's Teff blends the FGK-dwarf, M-dwarf and hot regimes, an evolved star's the giant
+     * (FGK-dwarf where no giant relation applies) and hot ones (see {@link StarDeriver}). A star without a class
+     * (no luminosity) is classified draw by draw and may use any.
+     */
+    static boolean evaluated(Regime regime, LuminosityClass cls) {
+        if (cls == null) {
+            return true;
+        }
+        return cls == LuminosityClass.EVOLVED ? regime != Regime.M_DWARF : regime != Regime.GIANT;
     }
 
     /**
