@@ -340,6 +340,9 @@ public final class StarDeriver {
 
         if (classKnown && cls == LuminosityClass.MAIN_SEQUENCE) {
             massChain(out);
+        }
+        if (classKnown && cls == LuminosityClass.MAIN_SEQUENCE && !s.valuesOnly) {
+            // the surface-brightness cross-check only flags the nominal star: a draw has no use for it
             crossCheckDiameter(out);
             if (out.angDiamSbrMas > 0 && out.angDiamMas > 0) {
                 double rel = Math.hypot(out.angDiamErrMas / out.angDiamMas,

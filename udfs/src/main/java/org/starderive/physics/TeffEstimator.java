@@ -148,7 +148,9 @@ final class TeffEstimator {
 
     void clear() {
         mean = chi2 = Double.NaN;
-        Arrays.fill(c, 0);
+        if (!s.valuesOnly) {
+            Arrays.fill(c, 0); // a Monte Carlo draw (values only) never reads the contributions
+        }
         mask = 0;
         n = 0;
         anyColour = anyOut = extrapolated = usesLogg = false;
@@ -162,6 +164,10 @@ final class TeffEstimator {
      * Estimates Teff from the relations of {@code regime} at log g {@code logg} (error {@code sLogg}); {@code offsets}
      * (null: none) shifts each enabled relation's Teff (a Monte Carlo draw); {@code teffMaxK} caps the temperature a
      * windowed relation may give (its own window, or the blend zone's upper edge).
+     *
+     * <p>In a Monte Carlo draw ({@link StarState#valuesOnly}) only what the draw's value needs is computed: the mean,
+     * the mask, n, the flags of the colours; not the Teff bounds (tUpper, tLower: they only flag the nominal
+     * estimate), the gradients or the first-order contributions. The mean is the same to the last bit either way.
      */
     void estimate(Regime regime, double logg, double sLogg, double[] offsets, double teffMaxK) {
         clear();
@@ -176,7 +182,10 @@ final class TeffEstimator {
         double gFeh = 0;
         double gLogg = 0;
         double scatterVar = 0;
-        Arrays.fill(gradBand, 0);
+        boolean vo = s.valuesOnly;
+        if (!vo) {
+            Arrays.fill(gradBand, 0);
+        }
         Arrays.fill(groupUsed, false);
         int ji = Band.J.ordinal();
         int hi = Band.H.ordinal();
@@ -207,17 +216,20 @@ final class TeffEstimator {
             boolean in = r.inRange(x, feh);
             if (!in) {
                 anyOut = true;
+            }
+            if (!in && !vo) {
                 double margin = 2 * Math.sqrt(sx2);
                 if (x > r.colourMax() + margin) {
                     tUpper = Math.min(tUpper, r.teff(r.colourMax(), feh, logg, aux));
                 } else if (x < r.colourMin() - margin) {
                     tLower = Math.max(tLower, r.teff(r.colourMin(), feh, logg, aux));
                 }
-                if (!allowExtrapolation || r.form() == TeffRelation.Form.MANN2015) {
-                    continue; // beyond a Mann turnover the polynomial is never evaluated
-                }
             }
-            double t = r.teff(x, feh, logg, aux);
+            if (!in && (!allowExtrapolation || r.form() == TeffRelation.Form.MANN2015)) {
+                continue; // beyond a Mann turnover the polynomial is never evaluated
+            }
+            double tRaw = r.teff(x, feh, logg, aux);
+            double t = tRaw;
             if (!(t >= r.teffMinK() && t <= Math.max(r.teffMaxK(), teffMaxK))) {
                 continue;
             }
@@ -228,7 +240,7 @@ final class TeffEstimator {
                 continue;
             }
             groupUsed[groupIds[k]] = true;
-            double dx = r.dTeffDColour(x, feh, logg, aux);
+            double dx = r.dTeffDColourAt(x, feh, logg, aux, tRaw);
             double sr = r.scatterK(t);
             double w = 1 / (dx * dx * sx2 + sr * sr);
             tEst[n] = t;
@@ -250,6 +262,12 @@ final class TeffEstimator {
             n++;
             sumW += w;
             sumWT += w * t;
+            mask |= 1L << relationIndex[k];
+            extrapolated |= !in;
+            usesLogg |= r.form() == TeffRelation.Form.GAIA2021;
+            if (vo) {
+                continue;
+            }
             gradBand[bi] += w * dx;
             gradBand[ri] -= w * dx;
             gEbv -= w * dx * (rBand[bi] - rBand[ri]);
@@ -263,15 +281,12 @@ final class TeffEstimator {
             gLogg += w * r.dTeffDLogg(x, feh);
             scatterVar += w * w * sr * sr;
             sumWZp += w * r.zeroPointK();
-            mask |= 1L << relationIndex[k];
-            extrapolated |= !in;
-            usesLogg |= r.form() == TeffRelation.Form.GAIA2021;
         }
         if (n == 0) {
             return;
         }
         mean = sumWT / sumW;
-        if (s.valuesOnly) {
+        if (vo) {
             return;
         }
         for (int b = 0; b < Band.COUNT; b++) {

@@ -201,12 +201,25 @@ public final class TeffRelation {
         }
     }
 
+    /**
+     * ∂Teff/∂X in K per mag where Teff at X is already known ({@code teffK = teff(x, feh, logg, aux)}): the same value
+     * as {@link #dTeffDColour(double, double, double, double)}, without evaluating the Flower relation a second time
+     * (d Teff/dX = Teff · ln 10 · d log Teff/dX).
+     */
+    public double dTeffDColourAt(double x, double feh, double logg, double aux, double teffK) {
+        return form == Form.FLOWER1996 ? flowerSlopeAt(x, teffK) : dTeffDColour(x, feh, logg, aux);
+    }
+
     private double flowerSlope(double x, double f, double logg, double aux) {
+        return flowerSlopeAt(x, teff(x, f, logg, aux));
+    }
+
+    private double flowerSlopeAt(double x, double teffK) {
         double d = 0;
         for (int i = c.length - 1; i >= 1; i--) {
             d = d * x + i * c[i];
         }
-        return teff(x, f, logg, aux) * Math.log(10) * d;
+        return teffK * Math.log(10) * d;
     }
 
     private double gaiaSlope(double x, double f, double logg) {

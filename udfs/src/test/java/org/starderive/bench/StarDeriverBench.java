@@ -58,6 +58,12 @@ public class StarDeriverBench {
             default: break;
         }
         deriver = new StarDeriver(b.build());
+        System.arraycopy(stars(), 0, stars, 0, N);
+    }
+
+    /** The benchmark's 4096 stars (fixed seed), shared with {@link MonteCarloBench}. */
+    static StarInput[] stars() {
+        StarInput[] stars = new StarInput[N];
         SplittableRandom r = new SplittableRandom(42);
         for (int k = 0; k < N; k++) {
             boolean giant = r.nextInt(5) == 0;
@@ -83,6 +89,7 @@ public class StarDeriverBench {
             }
             stars[k] = in;
         }
+        return stars;
     }
 
     @Benchmark

@@ -111,4 +111,43 @@ class MonteCarloDeriverTest {
         assertEquals(target, sum / reps, 0.003, "type 6");
         assertTrue(target - sum7 / reps > 0.015, "type 7 shrinks the interval: " + sum7 / reps);
     }
+
+    @Test
+    void selectedQuantilesAreThoseOfTheSortedDraws() {
+        // reference: a full sort (java.util.Arrays.sort) and the type-6 rule of Hyndman & Fan 1996 on it; the
+        // selection must give the same numbers to the last bit, also with ties and for every n the job can meet
+        java.util.SplittableRandom r = new java.util.SplittableRandom(11);
+        double[] p = {StarDeriver.P16, 0.5, StarDeriver.P84};
+        double[] q = new double[3];
+        for (int n = 1; n <= 300; n++) {
+            for (int rep = 0; rep < 20; rep++) {
+                double[] a = new double[n + 5];
+                for (int k = 0; k < n; k++) {
+                    a[k] = rep % 3 == 0 ? r.nextInt(5) : rep % 3 == 1 ? r.nextGaussian() : Math.exp(3 * r.nextGaussian());
+                }
+                double[] sorted = Arrays.copyOf(a, n);
+                Arrays.sort(sorted);
+                MonteCarloDeriver.selectQuantiles(a, n, p, q);
+                for (int i = 0; i < 3; i++) {
+                    assertEquals(MonteCarloDeriver.quantile(sorted, n, p[i]), q[i], 0.0, "n=" + n + " p=" + p[i]);
+                }
+            }
+        }
+    }
+
+    @Test
+    void theStarGeneratorIsCommonsRngsXoRoShiRo128PlusPlusForTheSeed() {
+        // reference: Commons RNG's own factory, RandomSource.XO_RO_SHI_RO_128_PP.create(seed), which the draws used
+        // before the generator was built directly; the same stream keeps every recorded Monte Carlo result
+        java.util.SplittableRandom r = new java.util.SplittableRandom(5);
+        for (int i = 0; i < 2000; i++) {
+            long seed = i < 3 ? i - 1 : r.nextLong();
+            org.apache.commons.rng.UniformRandomProvider want =
+                    org.apache.commons.rng.simple.RandomSource.XO_RO_SHI_RO_128_PP.create(seed);
+            org.apache.commons.rng.UniformRandomProvider got = MonteCarloDeriver.generator(seed);
+            for (int k = 0; k < 16; k++) {
+                assertEquals(want.nextLong(), got.nextLong(), "seed " + seed + ", output " + k);
+            }
+        }
+    }
 }
