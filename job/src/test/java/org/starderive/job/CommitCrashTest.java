@@ -195,13 +195,7 @@ class CommitCrashTest {
             assertEquals(4, r.exitCode, at + ": " + r);
             assertTrue(r.err.contains("already exists"), at + ": " + r.err);
             assertEquals(before, TestCatalogs.treeHash(out), at + ": previous output back, byte for byte");
-            try (Stream<Path> s = Files.list(tmp)) {
-                List<String> left = s.map(p -> p.getFileName().toString())
-                        .filter(n -> n.startsWith("out.staging-") || n.contains(".previous-") || n.contains(".commit-")
-                                || n.contains(".manifest-"))
-                        .collect(Collectors.toList());
-                assertEquals(List.of(), left, at);
-            }
+            assertEquals(List.of(), TestCatalogs.commitLeftovers(tmp, "out"), at);
         }
         // and an undisturbed run commits what the probe has
         DeriveJob.Summary s = derive(in2, out, mode);

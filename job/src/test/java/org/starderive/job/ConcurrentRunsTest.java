@@ -106,12 +106,7 @@ class ConcurrentRunsTest {
                 assertTrue(refused.get(0).getMessage().contains("is being written by run " + committed.get(0).runId + " "), what);
                 List<Row> got = spark.read().parquet(out.toString()).drop("flag_names").orderBy("star_id").collectAsList();
                 assertEquals(clean, got, what);
-                try (Stream<Path> s = Files.list(tmp)) {
-                    List<String> left = s.map(p -> p.getFileName().toString())
-                            .filter(n -> n.startsWith("out.staging-") || n.contains(".previous-") || n.contains(".commit-"))
-                            .collect(Collectors.toList());
-                    assertEquals(List.of(), left, what);
-                }
+                assertEquals(List.of(), TestCatalogs.commitLeftovers(tmp, "out"), what);
             }
         } finally {
             pool.shutdownNow();

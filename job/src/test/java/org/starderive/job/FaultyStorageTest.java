@@ -53,13 +53,8 @@ class FaultyStorageTest {
         return DeriveJob.run(spark, r, JobConfig.defaults());
     }
 
-    private List<String> leftovers() throws Exception {
-        try (Stream<Path> s = Files.list(tmp)) {
-            return s.map(p -> p.getFileName().toString())
-                    .filter(n -> n.startsWith("out.staging-") || n.contains(".previous-") || n.contains(".commit-")
-                            || n.contains(".manifest-"))
-                    .collect(Collectors.toList());
-        }
+    private List<String> leftovers() {
+        return TestCatalogs.commitLeftovers(tmp, "out");
     }
 
     private static void copyTree(Path from, Path to) throws Exception {

@@ -117,4 +117,19 @@ final class TestCatalogs {
         }
         return m;
     }
+
+    /**
+     * What a run may leave beside output {@code out} in {@code dir} besides its lease: staging folders, set-aside
+     * outputs and manifests, commit journals. Empty after every run that ended, committed or not.
+     */
+    static List<String> commitLeftovers(Path dir, String out) {
+        try (Stream<Path> s = Files.list(dir)) {
+            return s.map(p -> p.getFileName().toString())
+                    .filter(n -> n.startsWith(out + ".staging-") || n.startsWith("." + out + ".previous-")
+                            || n.startsWith("." + out + ".commit-") || n.startsWith("." + out + ".manifest-"))
+                    .sorted().collect(java.util.stream.Collectors.toList());
+        } catch (IOException e) {
+            throw new UncheckedIOException(e);
+        }
+    }
 }
