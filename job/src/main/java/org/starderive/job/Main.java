@@ -404,6 +404,16 @@ public final class Main implements Runnable {
                 description = "Spark master, e.g. local[4] or spark://host:7077. Default: the one spark-submit sets, "
                         + "otherwise local[*].")
         String master;
+
+        @Option(names = "--verbose",
+                description = "Spark's and Hadoop's own log lines too (by default only starderive's lines and warnings a user "
+                        + "can act on are shown).")
+        void setVerbose(boolean verbose) {
+            if (verbose) {
+                org.apache.logging.log4j.core.config.Configurator.setAllLevels(
+                        org.apache.logging.log4j.LogManager.ROOT_LOGGER_NAME, org.apache.logging.log4j.Level.INFO);
+            }
+        }
     }
 
     /** Runs the command line and returns the exit code (tests call this; main exits with it). */
