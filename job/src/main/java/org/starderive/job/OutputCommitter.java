@@ -198,7 +198,7 @@ public final class OutputCommitter {
                 Path j = journals[i].getPath();
                 String n = j.getName();
                 String run = n.substring(("." + output.getName() + ".commit-").length(), n.length() - ".json".length());
-                List<Step> plan = Step.parse(readText(j), j);
+                List<CommitStep> plan = CommitStep.parse(readText(j), j);
                 undo(plan, stepsDone(run, plan.size()), true);
                 fs.delete(j, false);
                 LOG.warn("Output {}: undid the commit journalled in {} (its run died during the commit); the previous output is back",
@@ -258,7 +258,7 @@ public final class OutputCommitter {
      */
     public List<String> commit(List<String> partitionColumns) {
         lease.checkHeld();
-        List<Step> plan = new ArrayList<>();
+        List<CommitStep> plan = new ArrayList<>();
         List<String> replaced = new ArrayList<>();
         try {
             boolean exists = fs.exists(output);
@@ -271,13 +271,13 @@ public final class OutputCommitter {
             } else {
                 if (exists) {
                     if (fs.exists(new Path(output, MANIFEST))) {
-                        plan.add(Step.move(new Path(output, MANIFEST), manifestAside("old")));
+                        plan.add(CommitStep.move(new Path(output, MANIFEST), manifestAside("old")));
                     }
-                    plan.add(Step.move(output, aside()));
+                    plan.add(CommitStep.move(output, aside()));
                 }
-                plan.add(Step.move(new Path(staging, MANIFEST), manifestAside("new")));
-                plan.add(Step.move(staging, output));
-                plan.add(Step.move(manifestAside("new"), new Path(output, MANIFEST)));
+                plan.add(CommitStep.move(new Path(staging, MANIFEST), manifestAside("new")));
+                plan.add(CommitStep.move(staging, output));
+                plan.add(CommitStep.move(manifestAside("new"), new Path(output, MANIFEST)));
             }
         } catch (IOException e) {
             throw JobException.output("Output " + output + ": cannot plan the commit (" + e.getMessage() + "); nothing was committed");
@@ -286,7 +286,7 @@ public final class OutputCommitter {
         int done = 0;
         boolean begun = false;
         try {
-            for (Step s : plan) {
+            for (CommitStep s : plan) {
                 lease.checkHeld();
                 TestHooks.beforeCommitStep(done, s.describe());
                 begun = true;
@@ -331,10 +331,10 @@ public final class OutputCommitter {
         return replaced;
     }
 
-    private List<String> planPartitions(int depth, List<Step> plan) throws IOException {
+    private List<String> planPartitions(int depth, List<CommitStep> plan) throws IOException {
         List<String> rels = stagedPartitions(depth);
         if (fs.exists(new Path(output, MANIFEST))) {
-            plan.add(Step.move(new Path(output, MANIFEST), manifestAside("old")));
+            plan.add(CommitStep.move(new Path(output, MANIFEST), manifestAside("old")));
         }
         java.util.Set<Path> made = new java.util.HashSet<>();
         for (String rel : rels) {
@@ -344,9 +344,9 @@ public final class OutputCommitter {
             if (fs.exists(target)) {
                 Path old = new Path(aside(), rel);
                 mkdirSteps(old.getParent(), made, plan);
-                plan.add(Step.move(target, old));
+                plan.add(CommitStep.move(target, old));
             }
-            plan.add(Step.move(leaf, target));
+            plan.add(CommitStep.move(leaf, target));
         }
         // other top-level files (data dictionary, _SUCCESS) replace the old ones; the manifest comes last
         for (FileStatus st : fs.listStatus(staging)) {
@@ -355,23 +355,23 @@ public final class OutputCommitter {
                 Path target = new Path(output, n);
                 if (fs.exists(target)) {
                     mkdirSteps(aside(), made, plan);
-                    plan.add(Step.move(target, new Path(aside(), n)));
+                    plan.add(CommitStep.move(target, new Path(aside(), n)));
                 }
-                plan.add(Step.move(st.getPath(), target));
+                plan.add(CommitStep.move(st.getPath(), target));
             }
         }
-        plan.add(Step.move(new Path(staging, MANIFEST), new Path(output, MANIFEST)));
+        plan.add(CommitStep.move(new Path(staging, MANIFEST), new Path(output, MANIFEST)));
         return rels;
     }
 
     /** Adds a mkdir step for each missing folder from the top down. */
-    private void mkdirSteps(Path dir, java.util.Set<Path> made, List<Step> plan) throws IOException {
+    private void mkdirSteps(Path dir, java.util.Set<Path> made, List<CommitStep> plan) throws IOException {
         if (made.contains(dir) || fs.exists(dir)) {
             return;
         }
         mkdirSteps(dir.getParent(), made, plan);
         made.add(dir);
-        plan.add(Step.mkdir(dir));
+        plan.add(CommitStep.mkdir(dir));
     }
 
     private void collectLeaves(Path dir, int depth, List<Path> out) throws IOException {
@@ -391,8 +391,8 @@ public final class OutputCommitter {
         return FileContext.getFileContext(output.toUri(), conf);
     }
 
-    private void apply(Step s) throws IOException {
-        if (s.op == Step.Op.MKDIR) {
+    private void apply(CommitStep s) throws IOException {
+        if (s.op == CommitStep.Op.MKDIR) {
             if (!fs.mkdirs(s.to)) {
                 throw new IOException("cannot create folder " + s.to);
             }
@@ -409,15 +409,15 @@ public final class OutputCommitter {
     }
 
     /**
-     * Undoes a plan of which the first {@code done} steps are recorded done. Step {@code done} itself may have begun
+     * Undoes a plan of which the first {@code done} steps are recorded done. CommitStep {@code done} itself may have begun
      * ({@code mayHaveBegun}): at its turn its target did not exist, so a target with the source gone means the move
      * happened, and a target beside the source means a copying move died half way (the copy is removed). Then the
      * done steps are reversed, newest first; folders the plan created are removed when empty.
      */
-    private void undo(List<Step> plan, int done, boolean mayHaveBegun) throws IOException {
+    private void undo(List<CommitStep> plan, int done, boolean mayHaveBegun) throws IOException {
         if (mayHaveBegun && done < plan.size()) {
-            Step s = plan.get(done);
-            if (s.op == Step.Op.MKDIR) {
+            CommitStep s = plan.get(done);
+            if (s.op == CommitStep.Op.MKDIR) {
                 removeIfEmpty(s.to);
             } else if (fs.exists(s.to)) {
                 if (fs.exists(s.from)) {
@@ -428,8 +428,8 @@ public final class OutputCommitter {
             }
         }
         for (int i = Math.min(done, plan.size()) - 1; i >= 0; i--) {
-            Step s = plan.get(i);
-            if (s.op == Step.Op.MKDIR) {
+            CommitStep s = plan.get(i);
+            if (s.op == CommitStep.Op.MKDIR) {
                 removeIfEmpty(s.to);
             } else if (fs.exists(s.to)) {
                 if (fs.exists(s.from)) {
@@ -441,7 +441,7 @@ public final class OutputCommitter {
         }
     }
 
-    private void moveBack(Step s) throws IOException {
+    private void moveBack(CommitStep s) throws IOException {
         fs.mkdirs(s.from.getParent());
         fileContext().rename(s.to, s.from, Options.Rename.NONE);
     }
@@ -452,11 +452,11 @@ public final class OutputCommitter {
         }
     }
 
-    private void writeJournal(List<Step> plan) {
+    private void writeJournal(List<CommitStep> plan) {
         Path tmp = new Path(journal() + ".tmp");
         try {
             try (org.apache.hadoop.fs.FSDataOutputStream o = fs.create(tmp, true)) {
-                o.write(Step.render(runId, mode, plan).getBytes(StandardCharsets.UTF_8));
+                o.write(CommitStep.render(runId, mode, plan).getBytes(StandardCharsets.UTF_8));
             }
             fileContext().rename(tmp, journal(), Options.Rename.NONE);
         } catch (IOException e) {
@@ -498,67 +498,6 @@ public final class OutputCommitter {
             o.write(text.getBytes(StandardCharsets.UTF_8));
         } catch (IOException e) {
             throw JobException.output("Output " + output + ": cannot write " + name + " (" + e.getMessage() + ")");
-        }
-    }
-
-    /** One step of a commit plan: move a file or folder, or create a folder. */
-    static final class Step {
-        enum Op { MOVE, MKDIR }
-
-        final Op op;
-        final Path from;
-        final Path to;
-
-        private Step(Op op, Path from, Path to) {
-            this.op = op;
-            this.from = from;
-            this.to = to;
-        }
-
-        static Step move(Path from, Path to) { return new Step(Op.MOVE, from, to); }
-
-        static Step mkdir(Path dir) { return new Step(Op.MKDIR, null, dir); }
-
-        String describe() { return op == Op.MKDIR ? "create " + to : "move " + from + " -> " + to; }
-
-        static String render(String runId, Mode mode, List<Step> plan) {
-            com.fasterxml.jackson.databind.ObjectMapper m = new com.fasterxml.jackson.databind.ObjectMapper();
-            com.fasterxml.jackson.databind.node.ObjectNode root = m.createObjectNode();
-            root.put("run_id", runId);
-            root.put("write_mode", mode.label());
-            com.fasterxml.jackson.databind.node.ArrayNode steps = root.putArray("steps");
-            for (Step s : plan) {
-                com.fasterxml.jackson.databind.node.ObjectNode n = steps.addObject();
-                n.put("op", s.op.name().toLowerCase(Locale.ROOT));
-                if (s.from != null) {
-                    n.put("from", s.from.toString());
-                }
-                n.put("to", s.to.toString());
-            }
-            try {
-                return m.writerWithDefaultPrettyPrinter().writeValueAsString(root) + "\n";
-            } catch (IOException e) {
-                throw new IllegalStateException(e);
-            }
-        }
-
-        static List<Step> parse(String text, Path where) {
-            try {
-                com.fasterxml.jackson.databind.JsonNode root = new com.fasterxml.jackson.databind.ObjectMapper().readTree(text);
-                List<Step> plan = new ArrayList<>();
-                for (com.fasterxml.jackson.databind.JsonNode n : root.get("steps")) {
-                    String op = n.get("op").asText();
-                    if (op.equals("mkdir")) {
-                        plan.add(mkdir(new Path(n.get("to").asText())));
-                    } else {
-                        plan.add(move(new Path(n.get("from").asText()), new Path(n.get("to").asText())));
-                    }
-                }
-                return plan;
-            } catch (IOException | RuntimeException e) {
-                throw JobException.output("Commit journal " + where + " cannot be read (" + e.getMessage() + ") (rule: a journal "
-                        + "left by a killed run is undone before the next run); inspect it and remove it by hand");
-            }
         }
     }
 }

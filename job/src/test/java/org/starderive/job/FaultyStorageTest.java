@@ -112,16 +112,27 @@ class FaultyStorageTest {
         renameFailsAtEveryStep(true);
     }
 
-    private void renameFailsAtEveryStep(boolean copying) throws Exception {
-        Path in = input("in", 30, 1);
+    /** Tile 1 of the 30-star table alone: a reprocessing that replaces one partition (or, overwriting, the whole). */
+    private Path tile1Reprocessed() {
         Path in1 = tmp.resolve("in1");
         TestCatalogs.writeParquet(spark, TestCatalogs.rows(30, 1).stream().filter(r -> r.getInt(1) == 1)
                 .collect(Collectors.toList()), in1);
+        return in1;
+    }
+
+    /** A clean output derived from {@code in}, with every fault switched off. */
+    private void freshOutput(Path in, Path out) throws Exception {
+        FaultyFileSystem.reset();
+        ConcurrentRunsTest.deleteTree(out);
+        derive(in, out, OutputCommitter.Mode.FAIL);
+    }
+
+    private void renameFailsAtEveryStep(boolean copying) throws Exception {
+        Path in = input("in", 30, 1);
+        Path in1 = tile1Reprocessed();
         Path out = tmp.resolve("out");
         for (OutputCommitter.Mode mode : List.of(OutputCommitter.Mode.OVERWRITE, OutputCommitter.Mode.REPLACE_PARTITIONS)) {
-            FaultyFileSystem.reset();
-            ConcurrentRunsTest.deleteTree(out);
-            derive(in, out, OutputCommitter.Mode.FAIL);
+            freshOutput(in, out);
             Map<String, String> before = TestCatalogs.treeHash(out);
             // how many renames a clean run makes (lease, journal, the commit's moves, the lease's release)
             Path probe = tmp.resolve("probe-" + mode.label());
@@ -168,14 +179,10 @@ class FaultyStorageTest {
     @Test
     void withCopyingRenamesAReaderFindingTheManifestSeesAWholeOutput() throws Exception {
         Path in = input("in", 30, 1);
-        Path in1 = tmp.resolve("in1");
-        TestCatalogs.writeParquet(spark, TestCatalogs.rows(30, 1).stream().filter(r -> r.getInt(1) == 1)
-                .collect(Collectors.toList()), in1);
+        Path in1 = tile1Reprocessed();
         Path out = tmp.resolve("out");
         for (OutputCommitter.Mode mode : List.of(OutputCommitter.Mode.OVERWRITE, OutputCommitter.Mode.REPLACE_PARTITIONS)) {
-            FaultyFileSystem.reset();
-            ConcurrentRunsTest.deleteTree(out);
-            derive(in, out, OutputCommitter.Mode.FAIL);
+            freshOutput(in, out);
             Map<String, String> before = CommitCrashTest.readerView(out);
             List<Map<String, String>> seenWithManifest = new ArrayList<>();
             int[] seenWithout = {0};
