@@ -264,22 +264,24 @@ public final class DeriveJob {
         }
     }
 
-    /**
-     * A failure of the storage while the output was written (full disk, quota, an I/O error of the file system) as a
-     * plain output error naming the path; anything else unchanged.
-     */
     /** Rethrows {@code e} as it is (checked or not), for the compiler a RuntimeException. */
     @SuppressWarnings("unchecked")
     private static <T extends Exception> T unchanged(Exception e) throws T {
         throw (T) e;
     }
 
+    /**
+     * A full disk, or a failed write of the staged output, as a plain output error (exit 4) naming the path; any other
+     * failure unchanged. "No space" may also come from Spark's local folders (shuffle, spill): the message says so.
+     */
     static RuntimeException storageFailure(Exception e, OutputCommitter committer) {
         if (e instanceof JobException) {
             return (JobException) e;
         }
         java.io.IOException io = null;
+        StringBuilder chain = new StringBuilder();
         for (Throwable t = e; t != null && t.getCause() != t; t = t.getCause()) {
+            chain.append(t.getMessage()).append('\n');
             if (t instanceof java.io.IOException) {
                 io = (java.io.IOException) t;
             }
@@ -289,10 +291,16 @@ public final class DeriveJob {
         }
         String m = String.valueOf(io.getMessage());
         String l = m.toLowerCase(java.util.Locale.ROOT);
-        String what = l.contains("no space") || l.contains("quota") ? "no space left on the output's file system"
-                : "write failed";
-        return new JobException(JobException.Kind.OUTPUT, "Output " + committer.output() + ": " + what + " while writing "
-                + committer.staging() + " (" + m + "); nothing was committed and the previous output is intact", e);
+        boolean noSpace = l.contains("no space") || l.contains("quota");
+        boolean writing = chain.indexOf(committer.staging().toUri().getPath()) >= 0 || chain.indexOf("TASK_WRITE_FAILED") >= 0;
+        if (!noSpace && !writing) {
+            return DeriveJob.<RuntimeException>unchanged(e);
+        }
+        String what = noSpace ? "no space left on a disk the run writes to (the output's file system, or Spark's local "
+                + "folders for shuffle and spill)" : "write failed";
+        return new JobException(JobException.Kind.OUTPUT, "Output " + committer.output() + ": " + what
+                + (writing ? " while writing " + committer.staging() : "") + " (" + m
+                + "); nothing was committed and the previous output is intact", e);
     }
 
     /**
