@@ -84,15 +84,20 @@ class VoUnitsSyntaxTest {
             }
         }
 
+        /** What follows an opening parenthesis, of a group or a function: a product, an optional division, ")". */
+        private void insideParentheses() {
+            productOfUnits();
+            if (peek("/")) {
+                i++;
+                unitExpression();
+            }
+            expect(")");
+        }
+
         private void unitExpression() {
             if (peek("(")) {
                 i++;
-                productOfUnits();
-                if (peek("/")) {
-                    i++;
-                    unitExpression();
-                }
-                expect(")");
+                insideParentheses();
                 return;
             }
             int start = i;
@@ -105,12 +110,7 @@ class VoUnitsSyntaxTest {
             }
             if (FUNCTIONS.contains(sym) && peek("(")) {
                 i++;
-                productOfUnits();
-                if (peek("/")) {
-                    i++;
-                    unitExpression();
-                }
-                expect(")");
+                insideParentheses();
                 return;
             }
             if (!recognised(sym)) {
