@@ -73,6 +73,7 @@ public final class OutputCommitter {
     private final String runId;
     private final Mode mode;
     private OutputLease lease;
+    private FileContext fileContext;
     private double leaseSeconds;
 
     public OutputCommitter(Configuration conf, String output, String runId, Mode mode) {
@@ -387,8 +388,12 @@ public final class OutputCommitter {
         }
     }
 
+    /** One FileContext for all moves of this run (a commit of many partitions makes two moves per partition). */
     private FileContext fileContext() throws IOException {
-        return FileContext.getFileContext(output.toUri(), conf);
+        if (fileContext == null) {
+            fileContext = FileContext.getFileContext(output.toUri(), conf);
+        }
+        return fileContext;
     }
 
     private void apply(CommitStep s) throws IOException {
