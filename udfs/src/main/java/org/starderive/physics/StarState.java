@@ -2,7 +2,9 @@ package org.starderive.physics;
 
 /**
  * One star's checked and dereddened inputs and their 1σ errors, shared by the steps of {@link StarDeriver} (package
- * private, reused per star). NaN marks a band that is missing or was rejected.
+ * private, reused per star). NaN marks a band that is missing or was rejected. Also carries what the steps hand each
+ * other: the distance modulus, V₀ and their first-order contributions per {@link ErrorSource}, and the Monte Carlo
+ * draw's deviates.
  */
 final class StarState {
     final double[] mObs = new double[Band.COUNT];
@@ -20,6 +22,38 @@ final class StarState {
     long sourceMask = -1L;
     /** Monte Carlo draw: skip first-order errors. */
     boolean valuesOnly;
+    /** Standard normal deviates per {@link ErrorSource} in a Monte Carlo draw (null: not a draw). */
+    double[] drawZ;
+
+    /** Distance modulus and its error (NaN without a distance). */
+    double mu;
+    double sMu;
+    /** Dereddened V (measured, or from G, BP−RP) and whether V itself was measured. */
+    double v0;
+    boolean vObserved;
+    /** First-order contributions of each error source to V₀ and to the absolute Ks magnitude. */
+    final double[] cV = new double[ErrorSource.COUNT];
+    final double[] cKs = new double[ErrorSource.COUNT];
+
+    /**
+     * The blend spreads (Teff, M_bol, ln M) of the star's nominal derivation: a Monte Carlo draw scales the nominal
+     * spread by its z (a spread recomputed inside the draw would make the blend term quadratic in z).
+     */
+    private final double[] nominalSpread = new double[3];
+
+    /** z × σ of source {@code j} in a draw; 0 outside draws. */
+    double dz(int j, double sigma) {
+        return drawZ == null ? 0.0 : drawZ[j] * sigma;
+    }
+
+    /** Spread {@code k} (0 Teff, 1 M_bol, 2 ln M): the computed one, kept, outside draws; the nominal one in a draw. */
+    double blendSpread(int k, double computed) {
+        if (drawZ == null) {
+            nominalSpread[k] = computed;
+            return computed;
+        }
+        return nominalSpread[k];
+    }
 
     boolean on(int source) {
         return (sourceMask & (1L << source)) != 0;

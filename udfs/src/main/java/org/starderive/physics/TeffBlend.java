@@ -1,0 +1,170 @@
+package org.starderive.physics;
+
+import java.util.List;
+
+/**
+ * The Teff step of {@link StarDeriver}: each calibration {@link Regime}'s estimate ({@link TeffEstimator}, an
+ * inverse-variance mean of the regime's in-range colour relations) and their blend with the regime weights — M dwarf
+ * (Mann et al. 2015), FGK dwarf (Casagrande et al. 2010, 2021) or giant (González Hernández &amp; Bonifacio 2009,
+ * Casagrande et al. 2021) and hot (Flower 1996 as corrected by Torres 2010) — across the K7–M0 and late-A–early-F
+ * zones described in {@link Regime}. Where two regimes are blended, the spread of the two-component mixture
+ * √(w₁w₂)·(T₂ − T₁) is an error source ({@link ErrorSource#BLEND}), and the weights' own derivatives enter the
+ * first-order errors. Holds the blended estimate the later steps read ({@link #mean}, {@link #err}, {@link #c},
+ * {@link #wM}, {@link #dwM}).
+ */
+final class TeffBlend {
+    private static final int NSRC = ErrorSource.COUNT;
+
+    private final DeriveSettings settings;
+    private final StarState s;
+    private final TeffEstimator estMain;
+    private final TeffEstimator estM;
+    private final TeffEstimator estHot;
+    private final long giantMask;
+    /** Whether estM and estHot hold this star's (or draw's) estimates. */
+    private boolean regimeEstimatesFresh;
+    /** Per-relation Teff offsets of a Monte Carlo draw (null: none). */
+    double[] drawTeffOffsetK;
+
+    // the blended estimate
+    double mean;
+    double err;
+    long relationMask;
+    double chi2;
+    int count;
+    boolean anyColour;
+    boolean extrapolated;
+    boolean usesLogg;
+    boolean boundBroken;
+    /** Weight of the M-dwarf estimate. */
+    double wM;
+    /** Contributions of each source to the M-dwarf weight (its derivative times the M estimate's contribution). */
+    final double[] dwM = new double[NSRC];
+    Regime regime;
+    /** First-order contributions of each error source to Teff. */
+    final double[] c = new double[NSRC];
+
+    TeffBlend(DeriveSettings settings, StarState s, TeffRelation[] relations, int[] relationIndex) {
+        this.settings = settings;
+        this.s = s;
+        boolean extrapolate = settings.allowExtrapolation();
+        this.estMain = new TeffEstimator(s, relations, relationIndex, extrapolate);
+        this.estM = new TeffEstimator(s, relations, relationIndex, extrapolate);
+        this.estHot = new TeffEstimator(s, relations, relationIndex, extrapolate);
+        long m = 0;
+        List<TeffRelation> all = TeffRelations.all();
+        for (int i = 0; i < all.size(); i++) {
+            if (all.get(i).regime() == Regime.GIANT) {
+                m |= 1L << i;
+            }
+        }
+        this.giantMask = m;
+    }
+
+    /** A new star (or draw): the M-dwarf and hot estimates are made again at the next {@link #estimate}. */
+    void newStar() {
+        regimeEstimatesFresh = false;
+    }
+
+    /** Evolved stars: giant relations with the log g prior; main-sequence (FGK) ones if none apply; hot blend. */
+    void estimateEvolved() {
+        double sLogg = settings.giantLoggPriorErr();
+        double logg = settings.giantLoggPrior() + s.dz(ErrorSource.LOGG, sLogg);
+        estimate(LuminosityClass.EVOLVED, logg, sLogg);
+    }
+
+    /**
+     * Teff of class {@code cls}: the regimes' estimates blended (see {@link Regime}). Main sequence: M dwarf, FGK and
+     * hot; evolved: giant (FGK dwarf relations if no giant relation applies) and hot.
+     */
+    void estimate(LuminosityClass cls, double logg, double sLogg) {
+        double[] off = drawTeffOffsetK;
+        TeffEstimator f = estMain;
+        if (cls == LuminosityClass.EVOLVED) {
+            f.estimate(Regime.GIANT, logg, sLogg, off, 0);
+            if (f.n == 0) {
+                boolean anyColourGiant = f.anyColour;
+                boolean anyOut = f.anyOut;
+                double upper = f.tUpper;
+                double lower = f.tLower;
+                f.estimate(Regime.FGK_DWARF, logg, sLogg, off, 0);
+                f.anyColour |= anyColourGiant;
+                f.anyOut |= anyOut;
+                f.tUpper = Math.min(f.tUpper, upper);
+                f.tLower = Math.max(f.tLower, lower);
+            }
+        } else {
+            f.estimate(Regime.FGK_DWARF, logg, sLogg, off, 0);
+        }
+        // the M-dwarf (Mann) and hot (Flower) relations take no log g: once per star (or draw) is enough
+        if (!regimeEstimatesFresh) {
+            estM.estimate(Regime.M_DWARF, logg, sLogg, off, Regime.M_BLEND_HI_K);
+            estHot.estimate(Regime.HOT, logg, sLogg, off, 0);
+            regimeEstimatesFresh = true;
+        }
+        Regime fRegime = cls == LuminosityClass.EVOLVED && (f.mask & giantMask) != 0 ? Regime.GIANT : Regime.FGK_DWARF;
+        blend(f, fRegime, cls != LuminosityClass.EVOLVED);
+    }
+
+    /** Blends the main (FGK or giant), M-dwarf and hot estimates with the regime weights. */
+    private void blend(TeffEstimator f, Regime fRegime, boolean withM) {
+        TeffEstimator m = estM;
+        TeffEstimator h = estHot;
+        double wm = withM && m.n > 0 ? Regime.mDwarfWeight(m.mean) : 0;
+        double wh = h.n > 0 ? Regime.hotWeight(h.mean) : 0;
+        double wf = f.n > 0 ? 1 - wm - wh : 0;
+        if (wf < 0) {
+            wf = 0;
+        }
+        double sum = wf + wm + wh;
+        anyColour = f.anyColour || (withM && m.anyColour) || h.anyColour;
+        usesLogg = f.usesLogg && wf > 0;
+        // bounds from colours beyond an edge: the M relations bound only from the red side, the hot one only from the
+        // blue side (their other edges are where another regime takes over, not where the star's colour says stop)
+        double upper = withM ? Math.min(f.tUpper, m.tUpper) : f.tUpper;
+        double lower = Math.max(f.tLower, h.tLower);
+        if (!(sum > 0)) {
+            mean = err = chi2 = Double.NaN;
+            relationMask = 0;
+            count = 0;
+            extrapolated = false;
+            boundBroken = false;
+            wM = 0;
+            regime = null;
+            return;
+        }
+        wf /= sum;
+        wm /= sum;
+        wh /= sum;
+        wM = wm;
+        mean = (wf > 0 ? wf * f.mean : 0) + (wm > 0 ? wm * m.mean : 0) + (wh > 0 ? wh * h.mean : 0);
+        // two regimes blended: their disagreement is an error source (the spread of the two-component mixture)
+        double spreadT = wm > 0 && wf > 0 ? Math.sqrt(wf * wm) * (m.mean - f.mean)
+                : wh > 0 && wf > 0 ? Math.sqrt(wf * wh) * (h.mean - f.mean)
+                : wm > 0 && wh > 0 ? Math.sqrt(wm * wh) * (h.mean - m.mean) : 0;
+        spreadT = s.blendSpread(0, spreadT);
+        mean += s.dz(ErrorSource.BLEND, spreadT);
+        relationMask = (wf > 0 ? f.mask : 0) | (wm > 0 ? m.mask : 0) | (wh > 0 ? h.mask : 0);
+        extrapolated = (wf > 0 && f.extrapolated) || (wm > 0 && m.extrapolated) || (wh > 0 && h.extrapolated);
+        TeffEstimator dom = wm >= wf && wm >= wh ? m : wh >= wf ? h : f;
+        regime = dom == m ? Regime.M_DWARF : dom == h ? Regime.HOT : fRegime;
+        count = dom.n;
+        chi2 = dom.chi2;
+        if (s.valuesOnly) {
+            err = Double.NaN;
+            boundBroken = false;
+            return;
+        }
+        // the weights move with the estimates they are judged by: d(blend) = Σ w dT + (T_other − T_fgk) dw
+        double dWm = wf > 0 && wm > 0 ? Regime.dMDwarfWeight(m.mean) : 0;
+        double dWh = wf > 0 && wh > 0 ? Regime.dHotWeight(h.mean) : 0;
+        for (int j = 0; j < NSRC; j++) {
+            dwM[j] = dWm * m.c[j];
+            c[j] = (wf > 0 ? wf * f.c[j] : 0) + (wm > 0 ? wm * m.c[j] : 0) + (wh > 0 ? wh * h.c[j] : 0)
+                    + (dWm != 0 ? dWm * (m.mean - f.mean) * m.c[j] : 0) + (dWh != 0 ? dWh * (h.mean - f.mean) * h.c[j] : 0);
+        }
+        c[ErrorSource.BLEND] = s.on(ErrorSource.BLEND) ? spreadT : 0;
+        err = StarDeriver.norm(c);
+        boundBroken = mean > upper + 2 * err || mean < lower - 2 * err;
+    }
+}
