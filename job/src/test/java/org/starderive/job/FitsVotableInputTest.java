@@ -1,0 +1,294 @@
+package org.starderive.job;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.io.IOException;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+import org.apache.spark.sql.Row;
+import org.apache.spark.sql.RowFactory;
+import org.apache.spark.sql.SparkSession;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+import org.starderive.testing.SharedSpark;
+import org.starderive.udf.DerivedSchema;
+
+/**
+ * {@code derive --input-format fits|votable}: a FITS and a VOTable version of a small survey derive to the same
+ * catalogue as its Parquet version, and bad files are refused as {@link DatasetErrorsTest} requires (exit code,
+ * file, column, rule, no stack trace, the previous output untouched).
+ */
+class FitsVotableInputTest {
+    @TempDir
+    Path tmp;
+
+    private final SparkSession spark = SharedSpark.spark();
+
+    private static CliRunner derive(String... args) {
+        return CliRunner.run(args);
+    }
+
+    /** Every row of a derived catalogue in id order: the id and every derived column. */
+    private List<Row> derivedRows(Path out) {
+        List<String> cols = new ArrayList<>(List.of("star_id"));
+        cols.addAll(DerivedSchema.names());
+        return spark.read().parquet(out.toString()).selectExpr(cols.toArray(new String[0])).orderBy("star_id").collectAsList();
+    }
+
+    /** The rows with every NaN replaced by null: what FITS and VOTable can say (NaN is their null of floating point). */
+    static List<Row> nanAsNull(List<Row> rows) {
+        List<Row> out = new ArrayList<>();
+        for (Row r : rows) {
+            Object[] v = new Object[r.length()];
+            for (int k = 0; k < v.length; k++) {
+                Object x = r.get(k);
+                v[k] = x instanceof Double && ((Double) x).isNaN() ? null : x;
+            }
+            out.add(RowFactory.create(v));
+        }
+        return out;
+    }
+
+    private static boolean hasNaN(Row r) {
+        for (int k = 0; k < r.length(); k++) {
+            if (r.get(k) instanceof Double && ((Double) r.getDouble(k)).isNaN()) {
+                return true;
+            }
+        }
+        return false;
+    }
+
+    @Test
+    void fitsAndVotableDeriveTheSameCatalogueAsParquet() {
+        // 300 stars with the hostile rows of TestCatalogs (sentinel magnitude, null parallax, NaN magnitude, null E(B-V))
+        List<Row> rows = TestCatalogs.rows(300, 1);
+        Path parquet = tmp.resolve("survey.parquet");
+        TestCatalogs.frame(spark, nanAsNull(rows)).coalesce(1).write().parquet(parquet.toString());
+        Path parquetNaN = tmp.resolve("survey-nan.parquet");
+        TestCatalogs.frame(spark, rows).coalesce(1).write().parquet(parquetNaN.toString());
+        Path fits = tmp.resolve("survey.fits");
+        Path vot = tmp.resolve("survey.vot");
+        TestCatalogs.writeTableFile(rows, TestCatalogs.schema(), fits, "fits", TestCatalogs.canonicalUnits());
+        TestCatalogs.writeTableFile(rows, TestCatalogs.schema(), vot, "votable", TestCatalogs.canonicalUnits());
+
+        Map<String, List<Row>> got = new HashMap<>();
+        Map<String, Path> inputs = Map.of("parquet", parquet, "parquet-nan", parquetNaN, "fits", fits, "votable", vot);
+        for (Map.Entry<String, Path> e : inputs.entrySet()) {
+            Path out = tmp.resolve("out-" + e.getKey());
+            CliRunner r = derive("derive", "--input", e.getValue().toString(), "--input-format",
+                    e.getKey().replace("-nan", ""), "--output", out.toString());
+            assertEquals(0, r.exitCode, e.getKey() + ": " + r);
+            assertTrue(r.out.contains("300 rows in, 300 rows out"), r.out);
+            got.put(e.getKey(), derivedRows(out));
+        }
+        List<Row> ref = got.get("parquet");
+        assertEquals(300, ref.size());
+        // the comparison has something to compare: most stars get a distance and a Teff
+        long withTeff = ref.stream().filter(x -> !x.isNullAt(x.fieldIndex("teff_k"))).count();
+        assertTrue(withTeff > 150, "stars with a Teff: " + withTeff);
+        // every value equal (Row.equals: floats exactly, NaN equal to NaN, null to null), row by row in id order
+        for (String fmt : List.of("fits", "votable")) {
+            List<Row> other = got.get(fmt);
+            assertEquals(ref.size(), other.size(), fmt);
+            for (int i = 0; i < ref.size(); i++) {
+                assertEquals(ref.get(i), other.get(i), fmt + " row " + i);
+            }
+        }
+        // Parquet keeps a NaN apart from null, FITS and VOTable cannot: a NaN magnitude is an invalid value there
+        // (INPUT_INVALID), a missing one here; every other value is the same
+        List<Row> withNaN = got.get("parquet-nan");
+        long invalid = org.starderive.physics.QualityFlag.INPUT_INVALID.mask();
+        int nanRows = 0;
+        for (int i = 0; i < ref.size(); i++) {
+            Row a = withNaN.get(i);
+            Row b = got.get("fits").get(i);
+            long fa = a.getLong(a.fieldIndex("flags"));
+            long fb = b.getLong(b.fieldIndex("flags"));
+            if (hasNaN(rows.get(i))) {
+                nanRows++;
+                assertEquals(fa, fb | invalid, "row " + i + ": INPUT_INVALID from the NaN");
+                assertEquals(0, fb & invalid, "row " + i + ": no INPUT_INVALID from a null");
+            } else {
+                assertEquals(a, b, "row " + i);
+            }
+            for (String c : DerivedSchema.names()) {
+                if (!c.equals("flags") && !c.equals("flag_names")) {
+                    assertEquals(a.get(a.fieldIndex(c)), b.get(b.fieldIndex(c)), "row " + i + " " + c);
+                }
+            }
+        }
+        assertEquals(300 / 7 + (300 % 7 > 6 ? 1 : 0), nanRows);
+    }
+
+    @Test
+    void twoTablesFitsAndVotableJoinAsParquetDoes() {
+        // astrometry as FITS and photometry as VOTable, joined on the id: the same catalogue as the one-table Parquet
+        List<Row> rows = nanAsNull(TestCatalogs.rows(40, 1));
+        Path parquet = tmp.resolve("all.parquet");
+        TestCatalogs.frame(spark, rows).coalesce(1).write().parquet(parquet.toString());
+        org.apache.spark.sql.types.StructType s = TestCatalogs.schema();
+        List<String> astroCols = List.of("star_id", "tile", "parallax_mas", "parallax_err_mas");
+        org.apache.spark.sql.types.StructType astroSchema = new org.apache.spark.sql.types.StructType();
+        org.apache.spark.sql.types.StructType photSchema = new org.apache.spark.sql.types.StructType();
+        for (org.apache.spark.sql.types.StructField f : s.fields()) {
+            if (astroCols.contains(f.name())) {
+                astroSchema = astroSchema.add(f);
+            }
+            if (!astroCols.contains(f.name()) || f.name().equals("star_id")) {
+                photSchema = photSchema.add(f);
+            }
+        }
+        List<Row> astro = new ArrayList<>();
+        List<Row> phot = new ArrayList<>();
+        for (Row r : rows) {
+            astro.add(RowFactory.create(r.get(0), r.get(1), r.get(2), r.get(3)));
+            Object[] p = new Object[photSchema.size()];
+            p[0] = r.get(0);
+            for (int k = 1; k < p.length; k++) {
+                p[k] = r.get(k + 3);
+            }
+            phot.add(RowFactory.create(p));
+        }
+        Path fits = tmp.resolve("astrometry.fits");
+        Path vot = tmp.resolve("photometry.vot");
+        TestCatalogs.writeTableFile(astro, astroSchema, fits, "fits", TestCatalogs.canonicalUnits());
+        // the photometry file in a folder of its own: a folder of files is one table
+        Path photDir = tmp.resolve("phot");
+        try {
+            Files.createDirectories(photDir);
+        } catch (IOException e) {
+            throw new java.io.UncheckedIOException(e);
+        }
+        TestCatalogs.writeTableFile(phot, photSchema, photDir.resolve(vot.getFileName()), "votable", TestCatalogs.canonicalUnits());
+
+        Path outP = tmp.resolve("out-parquet");
+        Path outF = tmp.resolve("out-two");
+        assertEquals(0, derive("derive", "--input", parquet.toString(), "--output", outP.toString()).exitCode);
+        CliRunner r = derive("derive", "--input", fits.toString(), "--photometry", photDir.toString(), "--input-format", "fits",
+                "--output", outF.toString());
+        // one --input-format for both tables: the VOTable folder is refused as FITS, naming the file
+        assertEquals(3, r.exitCode, r.toString());
+        assertTrue(r.err.contains("photometry.vot") && r.err.contains("FITS"), r.err);
+        // both as the same format: FITS astrometry and FITS photometry, the photometry without units (accepted)
+        Path photFits = tmp.resolve("photometry.fits");
+        TestCatalogs.writeTableFile(phot, photSchema, photFits, "fits", Map.of());
+        CliRunner ok = derive("derive", "--input", fits.toString(), "--photometry", photFits.toString(), "--input-format",
+                "fits", "--output", outF.toString());
+        assertEquals(0, ok.exitCode, ok.toString());
+        assertEquals(derivedRows(outP), derivedRows(outF));
+    }
+
+    // ---- refusals: exit 3 (dataset), file, column, rule; the previous output untouched ----
+
+    /** A committed output from good data, to show that a refused run leaves it as it was. */
+    private Path previousOutput() {
+        Path good = tmp.resolve("good.parquet");
+        TestCatalogs.frame(spark, TestCatalogs.rows(12, 1)).coalesce(1).write().parquet(good.toString());
+        Path out = tmp.resolve("out");
+        assertEquals(0, derive("derive", "--input", good.toString(), "--output", out.toString()).exitCode);
+        return out;
+    }
+
+    private static CliRunner refused(int exit, Path out, List<String> mustMention, Path in, String format, String... more) {
+        List<String> a = new ArrayList<>(List.of("derive", "--input", in.toString(), "--input-format", format,
+                "--output", out.toString(), "--write-mode", "overwrite"));
+        a.addAll(List.of(more));
+        CliRunner r = DatasetErrorsTest.expectFailure(exit, out, mustMention, a.toArray(new String[0]));
+        assertTrue(!r.err.contains("\tat ") && !r.err.contains("Exception in"), "no stack trace: " + r.err);
+        return r;
+    }
+
+    private Path smallFile(String name, String format, Map<String, String> units) {
+        Path f = tmp.resolve(name);
+        TestCatalogs.writeTableFile(TestCatalogs.rows(12, 1), TestCatalogs.schema(), f, format, units);
+        return f;
+    }
+
+    @Test
+    void truncatedFits() throws IOException {
+        Path out = previousOutput();
+        Path f = smallFile("cut.fits", "fits", TestCatalogs.canonicalUnits());
+        byte[] b = Files.readAllBytes(f);
+        // FITS 4.0 section 3.1: a file is whole 2880-byte blocks; cut inside the data block
+        assertEquals(0, b.length % 2880);
+        Files.write(f, java.util.Arrays.copyOf(b, b.length - 2000));
+        refused(3, out, List.of(f.toString(), "truncated"), f, "fits");
+        // and a FITS file that ends inside its header
+        Files.write(f, java.util.Arrays.copyOf(b, 1000));
+        refused(3, out, List.of(f.toString(), "FITS"), f, "fits");
+    }
+
+    @Test
+    void votableWithTextInANumericCell() throws IOException {
+        Path out = previousOutput();
+        List<Row> rows = new ArrayList<>(TestCatalogs.rows(12, 1));
+        Object[] v = new Object[rows.get(2).length()];
+        for (int k = 0; k < v.length; k++) {
+            v[k] = rows.get(2).get(k);
+        }
+        v[2] = 123.25; // parallax_mas of the third row: a value to find in the written text
+        rows.set(2, RowFactory.create(v));
+        Path f = tmp.resolve("text.vot");
+        TestCatalogs.writeTableFile(rows, TestCatalogs.schema(), f, "votable", TestCatalogs.canonicalUnits());
+        String xml = Files.readString(f, StandardCharsets.UTF_8);
+        assertTrue(xml.contains("<TD>123.25</TD>"), "STIL writes the value as it is");
+        Files.writeString(f, xml.replace("<TD>123.25</TD>", "<TD>12.3 mas</TD>"), StandardCharsets.UTF_8);
+        refused(3, out, List.of(f.toString(), "'parallax_mas'", "row 3", "12.3 mas", "double"), f, "votable");
+    }
+
+    @Test
+    void parallaxOrMagnitudeInAnotherUnit() {
+        Path out = previousOutput();
+        Map<String, String> arcsec = TestCatalogs.canonicalUnits();
+        arcsec.put("parallax_mas", "arcsec");
+        Path f = smallFile("arcsec.fits", "fits", arcsec);
+        refused(3, out, List.of(f.toString(), "'parallax_mas'", "'arcsec'", "expected mas", "columns.parallax_unit"), f, "fits");
+
+        Map<String, String> jansky = TestCatalogs.canonicalUnits();
+        jansky.put("mag_v_err", "Jy");
+        Path v = smallFile("jansky.vot", "votable", jansky);
+        refused(3, out, List.of(v.toString(), "'mag_v_err'", "'Jy'", "expected mag"), v, "votable");
+    }
+
+    @Test
+    void emptyTable() {
+        Path out = previousOutput();
+        Path f = tmp.resolve("empty.fits");
+        TestCatalogs.writeTableFile(List.of(), TestCatalogs.schema(), f, "fits", TestCatalogs.canonicalUnits());
+        refused(3, out, List.of(f.toString(), "no rows"), f, "fits");
+        Path v = tmp.resolve("empty.vot");
+        TestCatalogs.writeTableFile(List.of(), TestCatalogs.schema(), v, "votable", TestCatalogs.canonicalUnits());
+        refused(3, out, List.of(v.toString(), "no rows"), v, "votable");
+    }
+
+    @Test
+    void garbageAndWrongFormat() throws IOException {
+        Path out = previousOutput();
+        Path g = Files.writeString(tmp.resolve("notes.fits"), "star_id,parallax_mas\n1,2.5\n".repeat(200));
+        refused(3, out, List.of(g.toString(), "FITS"), g, "fits");
+        refused(3, out, List.of(g.toString(), "VOTABLE"), g, "votable");
+        // a FITS file given as VOTable
+        Path f = smallFile("real.fits", "fits", TestCatalogs.canonicalUnits());
+        refused(3, out, List.of(f.toString(), "VOTABLE"), f, "votable");
+    }
+
+    @Test
+    void aboveTheRowLimitIsRefusedWithTheWayOut() throws IOException {
+        Path out = previousOutput();
+        Path cfg = Files.writeString(tmp.resolve("small-driver.yaml"), "input:\n  fits_votable_max_rows: 10\n");
+        Path f = smallFile("twelve.fits", "fits", TestCatalogs.canonicalUnits());
+        refused(3, out, List.of(f.toString(), "more than 10", "input.fits_votable_max_rows", "Parquet"), f, "fits",
+                "--config", cfg.toString());
+        Path v = smallFile("twelve.vot", "votable", TestCatalogs.canonicalUnits());
+        refused(3, out, List.of(v.toString(), "more than 10", "input.fits_votable_max_rows", "Parquet"), v, "votable",
+                "--config", cfg.toString());
+        Files.writeString(cfg, "input:\n  fits_votable_max_rows: 0\n");
+        refused(2, out, List.of("input.fits_votable_max_rows"), f, "fits", "--config", cfg.toString());
+    }
+}
