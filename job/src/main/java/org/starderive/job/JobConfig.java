@@ -138,7 +138,7 @@ public final class JobConfig {
     public static final String KEY_UNCERTAINTY = "uncertainty";
     public static final String KEY_INPUT = "input";
     /**
-     * FITS and VOTable inputs are read into the driver's memory (about 0.5 kB per row of 15 numeric columns): at most
+     * FITS and VOTable inputs are read into the driver's memory (about 0.5 kB per row of 15 numeric columns, an estimate of boxed values in Spark rows, not measured): at most
      * this many rows per input table, all its files together; above it the job stops (exit 3) before reading further.
      * Same order as the export's {@code --max-rows} default: about 1 GB of driver memory.
      */
