@@ -42,6 +42,7 @@ import uk.ac.starlink.votable.VOTableBuilder;
  * is read on the driver by the Starlink Tables Infrastructure Library (STIL: its FITS binary/ASCII table reader, the
  * first table extension of the file; its VOTable reader, the first TABLE of the document, any serialisation), row by
  * row, into Spark rows; the Dataset is then distributed, so the rest of the pipeline is the same as for Parquet.
+ * A gzip- or bzip2-compressed file ({@code .fits.gz} as archives serve them) is decompressed while it is read.
  *
  * <p>Rules, each a refusal (exit 3) naming the file, the column where there is one, and the rule, before anything
  * is written:
@@ -144,7 +145,9 @@ final class TableFileInput {
         Path p = new Path(file);
         try {
             FileSystem fs = p.getFileSystem(conf);
-            return new BufferedInputStream(fs.open(p), 1 << 16);
+            // gzip, bzip2 and Unix compress are recognised by their first bytes and decompressed as they are read
+            InputStream raw = new BufferedInputStream(fs.open(p), 1 << 16);
+            return new BufferedInputStream(uk.ac.starlink.util.Compression.decompressStatic(raw), 1 << 16);
         } catch (IOException e) {
             throw JobException.input("Input " + role + " file " + file + ": cannot be opened (" + e.getMessage()
                     + ") (rule: every input file must be readable)");

@@ -175,10 +175,23 @@ class FitsVotableInputTest {
         // one --input-format for both tables: the VOTable folder is refused as FITS, naming the file
         assertEquals(3, r.exitCode, r.toString());
         assertTrue(r.err.contains("photometry.vot") && r.err.contains("FITS"), r.err);
-        // both as the same format: FITS astrometry and FITS photometry, the photometry without units (accepted)
-        Path photFits = tmp.resolve("photometry.fits");
-        TestCatalogs.writeTableFile(phot, photSchema, photFits, "fits", Map.of());
-        CliRunner ok = derive("derive", "--input", fits.toString(), "--photometry", photFits.toString(), "--input-format",
+        // both as the same format: FITS astrometry (gzip-compressed, as archives serve FITS) and FITS photometry as a
+        // folder of two files, the photometry without units (accepted)
+        Path fitsGz = tmp.resolve("astrometry.fits.gz");
+        try (java.io.OutputStream o = new java.util.zip.GZIPOutputStream(Files.newOutputStream(fitsGz))) {
+            o.write(Files.readAllBytes(fits));
+        } catch (IOException e) {
+            throw new java.io.UncheckedIOException(e);
+        }
+        Path photFits = tmp.resolve("phot-fits");
+        try {
+            Files.createDirectories(photFits);
+        } catch (IOException e) {
+            throw new java.io.UncheckedIOException(e);
+        }
+        TestCatalogs.writeTableFile(phot.subList(0, 25), photSchema, photFits.resolve("part-1.fits"), "fits", Map.of());
+        TestCatalogs.writeTableFile(phot.subList(25, phot.size()), photSchema, photFits.resolve("part-2.fits"), "fits", Map.of());
+        CliRunner ok = derive("derive", "--input", fitsGz.toString(), "--photometry", photFits.toString(), "--input-format",
                 "fits", "--output", outF.toString());
         assertEquals(0, ok.exitCode, ok.toString());
         assertEquals(derivedRows(outP), derivedRows(outF));
@@ -276,6 +289,15 @@ class FitsVotableInputTest {
         // a FITS file given as VOTable
         Path f = smallFile("real.fits", "fits", TestCatalogs.canonicalUnits());
         refused(3, out, List.of(f.toString(), "VOTABLE"), f, "votable");
+        // a zero-byte file
+        Path empty = Files.createFile(tmp.resolve("zero.fits"));
+        refused(3, out, List.of(empty.toString(), "FITS"), empty, "fits");
+        // two files of one table with different columns
+        Path dir = Files.createDirectories(tmp.resolve("mixed"));
+        TestCatalogs.writeTableFile(TestCatalogs.rows(4, 1), TestCatalogs.schema(), dir.resolve("a.fits"), "fits", Map.of());
+        TestCatalogs.writeTableFile(new ArrayList<>(), new org.apache.spark.sql.types.StructType()
+                .add("star_id", org.apache.spark.sql.types.DataTypes.LongType), dir.resolve("b.fits"), "fits", Map.of());
+        refused(3, out, List.of("a.fits", "b.fits", "columns differ"), dir, "fits");
     }
 
     @Test
