@@ -204,18 +204,22 @@ final class TableFileInput {
             }
         };
         try (InputStream in = open(conf, role, file)) {
+            if (format.equals(FITS)) {
+                checkFitsSignature(in, role, file);
+            }
             builder.streamStarTable(in, sink, null);
         } catch (TooManyRows e) {
             throw tooMany(role, file, limit + 1, limit, format);
         } catch (JobException e) {
             throw e;
         } catch (EOFException e) {
-            throw JobException.input("Input " + role + " file " + file + ": truncated, the file ends before its data does ("
-                    + e.getMessage() + ") (rule: every input file must be " + what(format) + ")");
+            throw JobException.input("Input " + role + " file " + file + ": truncated, the file ends before its data does"
+                    + (e.getMessage() == null ? "" : " (" + e.getMessage() + ")") + " (rule: every input file must be "
+                    + what(format) + ")");
         } catch (IOException | RuntimeException e) {
-            throw JobException.input("Input " + role + " file " + file + ": not readable as " + format.toUpperCase(Locale.ROOT)
-                    + " (" + e.getClass().getSimpleName() + (e.getMessage() == null ? "" : ": " + e.getMessage())
-                    + ") (rule: every input file must be " + what(format) + ")");
+            throw JobException.input("Input " + role + " file " + file + ": not readable as " + shown(format) + " ("
+                    + (e.getMessage() == null ? (format.equals(VOTABLE) ? "no VOTable document with a TABLE found"
+                    : e.getClass().getSimpleName()) : e.getMessage()) + ") (rule: every input file must be " + what(format) + ")");
         }
         if (schema[0] == null) {
             throw JobException.input("Input " + role + " file " + file + ": no table found (rule: every input file must be "
@@ -229,9 +233,35 @@ final class TableFileInput {
         return schema[0];
     }
 
+    private static String shown(String format) {
+        return format.equals(FITS) ? "FITS" : "VOTable";
+    }
+
+    /** FITS signature, FITS 4.0 section 4.4.1.1: a FITS file begins with the card {@code SIMPLE  =}. */
+    private static final byte[] FITS_START = "SIMPLE  =".getBytes(java.nio.charset.StandardCharsets.US_ASCII);
+
+    /**
+     * Refuses a file that is empty or does not begin as a FITS file, so that the message says so (the library's own
+     * error for such a file is an end-of-file one that would read as a truncation). Only the first 9 bytes are read;
+     * the stream is reset for the library.
+     */
+    private static void checkFitsSignature(InputStream in, String role, String file) throws IOException {
+        in.mark(FITS_START.length);
+        byte[] head = in.readNBytes(FITS_START.length);
+        in.reset();
+        if (head.length == 0) {
+            throw JobException.input("Input " + role + " file " + file + ": empty file, 0 bytes (rule: every input file must be "
+                    + what(FITS) + ")");
+        }
+        if (!java.util.Arrays.equals(head, FITS_START)) {
+            throw JobException.input("Input " + role + " file " + file + ": not a FITS file, it does not begin with 'SIMPLE  =' "
+                    + "(rule: every input file must be " + what(FITS) + "; FITS 4.0 section 4.4.1.1)");
+        }
+    }
+
     private static JobException tooMany(String role, String file, long rows, long limit, String format) {
         return JobException.input("Input " + role + " file " + file + ": " + (rows > limit ? "more than " + limit : rows)
-                + " rows in the table (rule: a " + format.toUpperCase(Locale.ROOT) + " input table is read into the driver's "
+                + " rows in the table (rule: a " + shown(format) + " input table is read into the driver's "
                 + "memory, at most input.fits_votable_max_rows = " + limit + " rows; convert it to Parquet, or raise the "
                 + "limit if the driver has the memory). Nothing was written.");
     }

@@ -234,7 +234,7 @@ class FitsVotableInputTest {
         refused(3, out, List.of(f.toString(), "truncated"), f, "fits");
         // and a FITS file that ends inside its header
         Files.write(f, java.util.Arrays.copyOf(b, 1000));
-        refused(3, out, List.of(f.toString(), "FITS"), f, "fits");
+        refused(3, out, List.of(f.toString(), "truncated"), f, "fits");
     }
 
     @Test
@@ -284,14 +284,14 @@ class FitsVotableInputTest {
     void garbageAndWrongFormat() throws IOException {
         Path out = previousOutput();
         Path g = Files.writeString(tmp.resolve("notes.fits"), "star_id,parallax_mas\n1,2.5\n".repeat(200));
-        refused(3, out, List.of(g.toString(), "FITS"), g, "fits");
-        refused(3, out, List.of(g.toString(), "VOTABLE"), g, "votable");
+        refused(3, out, List.of(g.toString(), "not a FITS file"), g, "fits");
+        refused(3, out, List.of(g.toString(), "not readable as VOTable"), g, "votable");
         // a FITS file given as VOTable
         Path f = smallFile("real.fits", "fits", TestCatalogs.canonicalUnits());
-        refused(3, out, List.of(f.toString(), "VOTABLE"), f, "votable");
+        refused(3, out, List.of(f.toString(), "not readable as VOTable"), f, "votable");
         // a zero-byte file
         Path empty = Files.createFile(tmp.resolve("zero.fits"));
-        refused(3, out, List.of(empty.toString(), "FITS"), empty, "fits");
+        refused(3, out, List.of(empty.toString(), "empty file"), empty, "fits");
         // two files of one table with different columns
         Path dir = Files.createDirectories(tmp.resolve("mixed"));
         TestCatalogs.writeTableFile(TestCatalogs.rows(4, 1), TestCatalogs.schema(), dir.resolve("a.fits"), "fits", Map.of());
