@@ -126,6 +126,59 @@ class FitsVotableInputTest {
         assertEquals(300 / 7 + (300 % 7 > 6 ? 1 : 0), nanRows);
     }
 
+    private static boolean astropyPresent() {
+        try {
+            Process p = new ProcessBuilder("/usr/bin/python3", "-c", "import astropy").redirectErrorStream(true).start();
+            return p.waitFor(60, java.util.concurrent.TimeUnit.SECONDS) && p.exitValue() == 0;
+        } catch (IOException | InterruptedException e) {
+            return false;
+        }
+    }
+
+    @Test
+    void filesWrittenByAstropyDeriveTheSameCatalogueAsParquet() throws Exception {
+        org.junit.jupiter.api.Assumptions.assumeTrue(astropyPresent(), "astropy is not installed for /usr/bin/python3 "
+                + "(Debian package python3-astropy; .ci/run installs it): the files of another writer are not tried");
+        // another writer's conventions: astropy writes masked integers with TNULL, masked floats as NaN (FITS) and
+        // empty cells (VOTable), and its own FIELD datatypes (long for every integer column)
+        List<Row> rows = TestCatalogs.rows(120, 1);
+        StringBuilder csv = new StringBuilder(String.join(",", TestCatalogs.schema().fieldNames())).append('\n');
+        for (Row r : rows) {
+            for (int k = 0; k < r.length(); k++) {
+                Object x = r.get(k);
+                csv.append(k > 0 ? "," : "").append(x == null ? "" : x instanceof Double && ((Double) x).isNaN() ? "nan" : x);
+            }
+            csv.append('\n');
+        }
+        Path in = Files.writeString(tmp.resolve("survey.csv"), csv.toString());
+        Path script = tmp.resolve("write_with_astropy.py");
+        try (var s = FitsVotableInputTest.class.getResourceAsStream("/input/write_with_astropy.py")) {
+            Files.write(script, s.readAllBytes());
+        }
+        Path fits = tmp.resolve("astropy.fits");
+        Path vot = tmp.resolve("astropy.vot");
+        List<String> cmd = new ArrayList<>(List.of("/usr/bin/python3", script.toString(), in.toString(), fits.toString(),
+                vot.toString()));
+        TestCatalogs.canonicalUnits().forEach((c, u) -> cmd.add(c + "=" + u));
+        Path err = tmp.resolve("astropy.err");
+        Process p = new ProcessBuilder(cmd).redirectErrorStream(true).redirectOutput(err.toFile()).start();
+        assertTrue(p.waitFor(120, java.util.concurrent.TimeUnit.SECONDS), "astropy writer timed out");
+        assertEquals(0, p.exitValue(), "astropy writer failed:\n" + Files.readString(err));
+
+        Path parquet = tmp.resolve("survey.parquet");
+        TestCatalogs.frame(spark, nanAsNull(rows)).coalesce(1).write().parquet(parquet.toString());
+        Path outP = tmp.resolve("out-parquet");
+        assertEquals(0, derive("derive", "--input", parquet.toString(), "--output", outP.toString()).exitCode);
+        List<Row> ref = derivedRows(outP);
+        for (Map.Entry<String, Path> e : Map.of("fits", fits, "votable", vot).entrySet()) {
+            Path out = tmp.resolve("out-astropy-" + e.getKey());
+            CliRunner r = derive("derive", "--input", e.getValue().toString(), "--input-format", e.getKey(),
+                    "--output", out.toString());
+            assertEquals(0, r.exitCode, e.getKey() + ": " + r);
+            assertEquals(ref, derivedRows(out), e.getKey() + " written by astropy");
+        }
+    }
+
     @Test
     void twoTablesFitsAndVotableJoinAsParquetDoes() {
         // astrometry as FITS and photometry as VOTable, joined on the id: the same catalogue as the one-table Parquet
