@@ -304,7 +304,7 @@ final class TableFileInput {
         return c;
     }
 
-    /** A STIL cell as Spark wants it: NaN of a scalar float column as null, characters as text, arrays as lists. */
+    /** A STIL cell as Spark wants it: NaN as null (also inside arrays), characters as text, arrays as Scala lists. */
     static Object sparkValue(Object x) {
         if (x == null) {
             return null;
@@ -323,9 +323,13 @@ final class TableFileInput {
             List<Object> l = new ArrayList<>(n);
             for (int i = 0; i < n; i++) {
                 Object e = java.lang.reflect.Array.get(x, i);
+                if (e instanceof Double && ((Double) e).isNaN() || e instanceof Float && ((Float) e).isNaN()) {
+                    e = null;
+                }
                 l.add(e instanceof Character ? e.toString() : e);
             }
-            return l;
+            // a Scala Seq: what a Spark Row holds for an array column (a java.util.List is refused by the encoder)
+            return scala.collection.JavaConverters.asScalaBuffer(l).toList();
         }
         return x;
     }

@@ -250,6 +250,56 @@ class FitsVotableInputTest {
         assertEquals(derivedRows(outP), derivedRows(outF));
     }
 
+    @Test
+    void otherColumnTypesPassThroughInTheFullLayout() throws IOException {
+        // 32-bit floats, 16-bit integers, booleans, text and a fixed-size array column (FITS 3D, VOTable arraysize 3)
+        uk.ac.starlink.table.ColumnInfo[] ci = {
+            new uk.ac.starlink.table.ColumnInfo("star_id", Long.class, null),
+            new uk.ac.starlink.table.ColumnInfo("parallax_mas", Float.class, null),
+            new uk.ac.starlink.table.ColumnInfo("parallax_err_mas", Float.class, null),
+            new uk.ac.starlink.table.ColumnInfo("mag_v", Double.class, null),
+            new uk.ac.starlink.table.ColumnInfo("mag_v_err", Double.class, null),
+            new uk.ac.starlink.table.ColumnInfo("mag_ks", Double.class, null),
+            new uk.ac.starlink.table.ColumnInfo("mag_ks_err", Double.class, null),
+            new uk.ac.starlink.table.ColumnInfo("flux_aper", double[].class, null),
+            new uk.ac.starlink.table.ColumnInfo("note", String.class, null),
+            new uk.ac.starlink.table.ColumnInfo("good", Boolean.class, null),
+            new uk.ac.starlink.table.ColumnInfo("field_no", Short.class, null)};
+        ci[7].setShape(new int[] {3});
+        uk.ac.starlink.table.RowListStarTable t = new uk.ac.starlink.table.RowListStarTable(ci);
+        for (int i = 0; i < 10; i++) {
+            double v = 8 + 0.1 * i;
+            t.addRow(new Object[] {(long) i, 10f + i, 0.05f, v, 0.01, v - 1.544, 0.02,
+                new double[] {i, i + 0.5, i == 3 ? Double.NaN : i + 0.25}, i == 4 ? null : "star " + i, i % 2 == 0,
+                (short) (100 + i)});
+        }
+        for (String fmt : List.of("fits", "votable")) {
+            Path f = tmp.resolve("types." + fmt);
+            try (java.io.OutputStream os = Files.newOutputStream(f)) {
+                (fmt.equals("fits") ? new uk.ac.starlink.fits.FitsTableWriter()
+                        : new uk.ac.starlink.votable.VOTableWriter(uk.ac.starlink.votable.DataFormat.TABLEDATA, true))
+                        .writeStarTable(t, os);
+            }
+            Path out = tmp.resolve("out-types-" + fmt);
+            CliRunner r = derive("derive", "--input", f.toString(), "--input-format", fmt, "--layout", "full",
+                    "--output", out.toString());
+            assertEquals(0, r.exitCode, fmt + ": " + r);
+            List<Row> got = spark.read().parquet(out.toString()).orderBy("star_id").collectAsList();
+            assertEquals(10, got.size(), fmt);
+            for (int i = 0; i < 10; i++) {
+                Row g = got.get(i);
+                String where = fmt + " row " + i;
+                assertEquals(10f + i, g.getFloat(g.fieldIndex("parallax_mas")), 0f, where);
+                List<Object> flux = g.getList(g.fieldIndex("flux_aper"));
+                assertEquals(java.util.Arrays.asList((double) i, i + 0.5, i == 3 ? null : i + 0.25), flux, where);
+                assertEquals(i == 4 ? null : "star " + i, g.get(g.fieldIndex("note")), where);
+                assertEquals(i % 2 == 0, g.getBoolean(g.fieldIndex("good")), where);
+                assertEquals(100 + i, ((Number) g.get(g.fieldIndex("field_no"))).intValue(), where);
+                assertTrue(!g.isNullAt(g.fieldIndex("dist_pc")), where + ": a distance derived");
+            }
+        }
+    }
+
     // ---- refusals: exit 3 (dataset), file, column, rule; the previous output untouched ----
 
     /** A committed output from good data, to show that a refused run leaves it as it was. */
