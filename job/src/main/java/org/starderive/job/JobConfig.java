@@ -138,9 +138,9 @@ public final class JobConfig {
     public static final String KEY_UNCERTAINTY = "uncertainty";
     public static final String KEY_INPUT = "input";
     /**
-     * FITS and VOTable inputs are read into the driver's memory (about 0.5 kB per row of 15 numeric columns, an estimate of boxed values in Spark rows, not measured): at most
+     * FITS and VOTable inputs are read into the driver's memory (measured: 410 bytes per row of 14 numeric columns, FitsReadMemory in the test sources): at most
      * this many rows per input table, all its files together; above it the job stops (exit 3) before reading further.
-     * Same order as the export's {@code --max-rows} default: about 1 GB of driver memory.
+     * The same default as the export's {@code --max-rows}: about 0.4 GB of driver heap for a table of 14 numeric columns.
      */
     public static final long FITS_VOTABLE_MAX_ROWS_DEFAULT = 1_000_000L;
     /** analytic (first order) or montecarlo (percentiles over draws). */
