@@ -138,9 +138,10 @@ public final class JobConfig {
     public static final String KEY_UNCERTAINTY = "uncertainty";
     public static final String KEY_INPUT = "input";
     /**
-     * FITS and VOTable inputs are read into the driver's memory (measured: 410 bytes per row of 14 numeric columns, FitsReadMemory in the test sources): at most
-     * this many rows per input table, all its files together; above it the job stops (exit 3) before reading further.
-     * The same default as the export's {@code --max-rows}: about 0.4 GB of driver heap for a table of 14 numeric columns.
+     * FITS and VOTable inputs are read into the driver's memory (measured: 410 bytes per row of 14 numeric columns,
+     * {@code FitsReadMemory} in the test sources): at most this many rows per input table, all its files together;
+     * above it the job stops (exit 3) before reading further. The same default as the export's {@code --max-rows}:
+     * about 0.4 GB of driver heap for a table of 14 numeric columns.
      */
     public static final long FITS_VOTABLE_MAX_ROWS_DEFAULT = 1_000_000L;
     /** analytic (first order) or montecarlo (percentiles over draws). */
