@@ -60,8 +60,9 @@ import uk.ac.starlink.votable.VOTableBuilder;
  * </ul>
  *
  * <p>Nulls: FITS integer columns with TNULL, VOTable {@code VALUES null} and empty cells, FITS blank strings come
- * as null from STIL; NaN in a floating-point column is the null value of both formats (FITS 4.0 section 5.3; VOTable
- * 1.4 section 6) and becomes null too, so that a FITS file and a Parquet file with nulls give the same rows.
+ * as null from STIL; NaN in a floating-point column is the null value of both formats (FITS 4.0 section 5.3, VOTable
+ * 1.4 section 6; section numbers from memory) and becomes null too, so that a FITS file and a Parquet file with
+ * nulls give the same rows.
  */
 final class TableFileInput {
     private TableFileInput() {}
@@ -237,7 +238,7 @@ final class TableFileInput {
         return format.equals(FITS) ? "FITS" : "VOTable";
     }
 
-    /** FITS signature, FITS 4.0 section 4.4.1.1: a FITS file begins with the card {@code SIMPLE  =}. */
+    /** FITS signature (FITS 4.0 section 4.4.1.1, section number from memory): a file begins with {@code SIMPLE  =}. */
     private static final byte[] FITS_START = "SIMPLE  =".getBytes(java.nio.charset.StandardCharsets.US_ASCII);
 
     /**
@@ -255,7 +256,7 @@ final class TableFileInput {
         }
         if (!java.util.Arrays.equals(head, FITS_START)) {
             throw JobException.input("Input " + role + " file " + file + ": not a FITS file, it does not begin with 'SIMPLE  =' "
-                    + "(rule: every input file must be " + what(FITS) + "; FITS 4.0 section 4.4.1.1)");
+                    + "(rule: every input file must be " + what(FITS) + ", whose first header card is SIMPLE)");
         }
     }
 
