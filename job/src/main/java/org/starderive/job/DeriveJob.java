@@ -140,8 +140,8 @@ public final class DeriveJob {
         String idColumn = req.joinOn != null ? req.joinOn : config.idColumn();
         DerivePipeline pipeline = new DerivePipeline(config, idColumn);
         boolean twoTables = !req.photometry.isEmpty();
-        InputTable astro = InputTable.open(spark, twoTables ? "astrometry" : "table", req.input, req.inputFormat);
-        InputTable phot = twoTables ? InputTable.open(spark, "photometry", req.photometry, req.inputFormat) : null;
+        InputTable astro = InputTable.open(spark, twoTables ? "astrometry" : "table", req.input, req.inputFormat, config);
+        InputTable phot = twoTables ? InputTable.open(spark, "photometry", req.photometry, req.inputFormat, config) : null;
         seconds.put("open_inputs", (System.nanoTime() - t0) / 1e9);
         List<String> partitionColumns = astro.partitionColumns();
         if (req.writeMode == OutputCommitter.Mode.REPLACE_PARTITIONS && partitionColumns.isEmpty()) {

@@ -56,7 +56,10 @@ public final class InputTable {
     public String format() { return format; }
     public Dataset<Row> data() { return data; }
     public List<String> partitionColumns() { return partitionColumns; }
-    /** Row count from the Parquet footers (−1 for CSV). */
+    /** The input formats, as the rule of a refusal says them. */
+    static final String FORMATS_RULE = "must be parquet, csv, fits or votable";
+
+    /** Row count from the Parquet footers, or of the rows read from FITS/VOTable files (−1 for CSV). */
     public long rowsFromFooters() { return rowsFromFooters; }
     public int fileCount() { return files.size(); }
     /** The data files as listed when the table was opened, in listing order. */
@@ -167,8 +170,17 @@ public final class InputTable {
         return listing;
     }
 
-    /** Reads and checks one table. */
+    /** Reads and checks one table, with the default configuration. */
     public static InputTable open(SparkSession spark, String role, List<String> paths, String format) {
+        return open(spark, role, paths, format, JobConfig.defaults());
+    }
+
+    /**
+     * Reads and checks one table. Parquet and CSV are read by Spark; FITS and VOTable by {@link TableFileInput} on the
+     * driver (each path a file, or a folder of files of the same columns, without {@code key=value} folders), with the
+     * config's row limit and unit check.
+     */
+    public static InputTable open(SparkSession spark, String role, List<String> paths, String format, JobConfig config) {
         Configuration conf = spark.sparkContext().hadoopConfiguration();
         Listing listing = list(conf, role, paths, true);
         List<String> files = new ArrayList<>();
@@ -196,8 +208,17 @@ public final class InputTable {
         } else if (format.equals("csv")) {
             data = spark.read().option("header", "true").option("inferSchema", "true").option("mode", "FAILFAST")
                     .csv(paths.toArray(new String[0]));
+        } else if (format.equals(TableFileInput.FITS) || format.equals(TableFileInput.VOTABLE)) {
+            if (!partitionColumns.isEmpty()) {
+                throw JobException.input("Input " + role + " " + layoutExample.get(partitionColumns) + ": sits under key=value "
+                        + "folders " + partitionColumns + " (rule: a " + format + " input is one file, or a folder of files, "
+                        + "without partition folders; convert a partitioned survey to Parquet)");
+            }
+            TableFileInput.Result r = TableFileInput.read(spark, role, files, format, config);
+            data = r.data;
+            footerRows = r.rows;
         } else {
-            throw JobException.config("Invalid --input-format: " + format + " (must be parquet or csv)");
+            throw JobException.config("Invalid --input-format: " + format + " (" + FORMATS_RULE + ")");
         }
         return new InputTable(role, paths, format, data, partitionColumns, footerRows, listing.files);
     }

@@ -66,7 +66,9 @@ public final class Main implements Runnable {
         Path config;
 
         @Option(names = "--input-format", paramLabel = "FORMAT", defaultValue = "parquet",
-                description = "parquet or csv (with a header line). Default: ${DEFAULT-VALUE}.")
+                description = "parquet, csv (with a header line), fits or votable (FITS binary table or VOTable: one file, or a "
+                        + "folder of files, read on the driver; at most input.fits_votable_max_rows rows per table, "
+                        + "1000000 unless the config says). Default: ${DEFAULT-VALUE}.")
         String inputFormat;
 
         @Option(names = "--output-format", paramLabel = "FORMAT", defaultValue = "parquet",
@@ -115,8 +117,8 @@ public final class Main implements Runnable {
             req.inputFormat = inputFormat;
             req.outputFormat = outputFormat;
             req.writeMode = OutputCommitter.Mode.parse(writeMode);
-            if (!inputFormat.equals("parquet") && !inputFormat.equals("csv")) {
-                throw JobException.config("Invalid --input-format: " + inputFormat + " (must be parquet or csv)");
+            if (!List.of("parquet", "csv", "fits", "votable").contains(inputFormat)) {
+                throw JobException.config("Invalid --input-format: " + inputFormat + " (" + InputTable.FORMATS_RULE + ")");
             }
             JobConfig cfg = config == null ? JobConfig.defaults() : JobConfig.load(config);
             cfg.withLayout(layout, columns);

@@ -41,7 +41,7 @@ class DatasetErrorsTest {
     }
 
     /** Runs derive expecting failure; checks exit code, message fragments, and that out is as before. */
-    private CliRunner expectFailure(int exit, Path out, List<String> mustMention, String... args) {
+    static CliRunner expectFailure(int exit, Path out, List<String> mustMention, String... args) {
         Map<String, String> before = TestCatalogs.treeHash(out);
         boolean existed = Files.exists(out);
         CliRunner r = CliRunner.run(args);
@@ -182,8 +182,8 @@ class DatasetErrorsTest {
         Path out = tmp.resolve("out");
         expectFailure(2, out, List.of("--write-mode", "sometimes"), "derive", "--input", in.toString(), "--output", out.toString(),
                 "--write-mode", "sometimes");
-        expectFailure(2, out, List.of("--input-format", "fits"), "derive", "--input", in.toString(), "--output", out.toString(),
-                "--input-format", "fits");
+        expectFailure(2, out, List.of("--input-format", "hdf5", "fits or votable"), "derive", "--input", in.toString(),
+                "--output", out.toString(), "--input-format", "hdf5");
         expectFailure(2, out, List.of("replace-partitions"), "derive", "--input", tmp.resolve("in").resolve("tile=0").toString(),
                 "--output", out.toString(), "--write-mode", "replace-partitions");
     }

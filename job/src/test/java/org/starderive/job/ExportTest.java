@@ -42,7 +42,10 @@ import org.w3c.dom.NodeList;
  *       catalogue; this test compares what astropy found with the Parquet catalogue (rows, values, units, UCDs,
  *       provenance). Skipped only where astropy is not installed ({@code .ci/run} installs it);</li>
  *   <li>the JDK's XML parser, reading the VOTable's TABLEDATA (IVOA VOTable 1.4 structure: RESOURCE/TABLE/FIELD,
- *       DATA/TABLEDATA/TR/TD) for the selection and refusal checks, which need no Python.</li>
+ *       DATA/TABLEDATA/TR/TD) for the selection and refusal checks, which need no Python;</li>
+ *   <li>nom-tam-fits (the HEASARC FITS library, not STIL) and the JDK's XML parser for the round trip of the demo
+ *       (Kestrel) catalogue: every column and every row of both exports against the Parquet catalogue, with units
+ *       and UCDs — the check that runs where astropy is not installed.</li>
  * </ul>
  */
 class ExportTest {
@@ -207,6 +210,155 @@ class ExportTest {
         assertEquals(manifest.get("version").asText(), vp.get("derive_version").asText());
         assertEquals(manifest.get("version").asText(), fp.get("SDVERSN").asText());
         assertTrue(fp.get("CREATOR").asText().startsWith("starderive "), fp.toString());
+    }
+
+    /** The text value of a FITS header keyword, or null when absent. */
+    private static String card(nom.tam.fits.Header h, String key) {
+        return h.containsKey(key) ? h.getStringValue(key) : null;
+    }
+
+    @Test
+    void demoCatalogueRoundTripReadByNomTamFitsAndTheJdkXmlParser() throws Exception {
+        // the demo: the synthetic Kestrel survey with its config, derived in the default layout
+        Path survey = tmp.resolve("kestrel");
+        org.starderive.sample.SampleSurvey.writeSingle(spark, 400, 7, survey.toString(), 1,
+                org.apache.spark.sql.SaveMode.ErrorIfExists);
+        Path demo = tmp.resolve("kestrel-derived");
+        CliRunner d = CliRunner.run("derive", "--input", survey.resolve("stars").toString(), "--output", demo.toString(),
+                "--config", ProjectFiles.path("sample-survey", "config", "kestrel.yaml").toString());
+        assertEquals(0, d.exitCode, d.toString());
+        Path fits = tmp.resolve("kestrel.fits");
+        Path vot = tmp.resolve("kestrel.vot");
+        for (Map.Entry<Path, String> e : Map.of(fits, "fits", vot, "votable").entrySet()) {
+            CliRunner r = CliRunner.run("export", "--catalog", demo.toString(), "--out", e.getKey().toString(),
+                    "--format", e.getValue());
+            assertEquals(0, r.exitCode, r.toString());
+        }
+        StructType schema = spark.read().parquet(demo.toString()).schema();
+        String id = schema.fields()[0].name();
+        Map<Long, Row> cat = new HashMap<>();
+        for (Row r : spark.read().parquet(demo.toString()).collectAsList()) {
+            cat.put(r.getLong(0), r);
+        }
+        assertEquals(400, cat.size());
+        int compared = 0;
+
+        // FITS, read by nom-tam-fits: HDU 1 is the binary table (FITS 4.0 section 7.3); TTYPEn, TUNITn, TUCDn, TNULLn
+        try (nom.tam.fits.Fits f = new nom.tam.fits.Fits(fits.toFile())) {
+            nom.tam.fits.BinaryTableHDU h = (nom.tam.fits.BinaryTableHDU) f.getHDU(1);
+            nom.tam.fits.Header hdr = h.getHeader();
+            nom.tam.fits.BinaryTable t = h.getData();
+            assertEquals(cat.size(), h.getNRows(), "fits rows");
+            assertEquals(schema.size(), h.getNCols(), "fits columns");
+            int idCol = h.findColumn(id);
+            java.util.Set<Long> seen = new java.util.HashSet<>();
+            for (StructField sf : schema.fields()) {
+                int c = h.findColumn(sf.name());
+                assertTrue(c >= 0, "fits column " + sf.name());
+                int n = c + 1;
+                String unit = sf.metadata().contains(DerivedSchema.META_UNIT) ? sf.metadata().getString(DerivedSchema.META_UNIT) : null;
+                assertEquals(unit == null || unit.isEmpty() ? null : unit, card(hdr, "TUNIT" + n), "fits unit " + sf.name());
+                if (sf.metadata().contains(DerivedSchema.META_UCD)) {
+                    assertEquals(sf.metadata().getString(DerivedSchema.META_UCD), card(hdr, "TUCD" + n), "fits UCD " + sf.name());
+                }
+            }
+            assertEquals("meta.id;meta.main", card(hdr, "TUCD" + (idCol + 1)));
+            for (int i = 0; i < h.getNRows(); i++) {
+                long starId = ((Number) t.get(i, idCol)).longValue();
+                assertTrue(seen.add(starId), "fits id once: " + starId);
+                Row r = cat.get(starId);
+                assertNotNull(r, "fits id " + starId);
+                for (int k = 0; k < schema.size(); k++) {
+                    StructField sf = schema.fields()[k];
+                    int c = h.findColumn(sf.name());
+                    Object x = t.get(i, c);
+                    String where = "fits id " + starId + " " + sf.name();
+                    if (x != null && x.getClass().isArray()) {
+                        x = java.lang.reflect.Array.getLength(x) == 0 ? null : java.lang.reflect.Array.get(x, 0);
+                    }
+                    if (r.isNullAt(k)) {
+                        if (x instanceof Double || x instanceof Float) {
+                            assertTrue(Double.isNaN(((Number) x).doubleValue()), where + ": NaN for null, got " + x);
+                        } else if (x instanceof Number) {
+                            assertEquals(Long.parseLong(card(hdr, "TNULL" + (c + 1)).trim()), ((Number) x).longValue(),
+                                    where + ": TNULL for null");
+                        } else {
+                            assertTrue(x == null || String.valueOf(x).isBlank(), where + ": blank for null, got " + x);
+                        }
+                    } else if (r.get(k) instanceof Float) {
+                        assertEquals(r.getFloat(k), ((Number) x).floatValue(), 0f, where);
+                    } else if (r.get(k) instanceof Double) {
+                        assertEquals(r.getDouble(k), ((Number) x).doubleValue(), 0.0, where);
+                    } else if (r.get(k) instanceof Number) {
+                        assertEquals(((Number) r.get(k)).longValue(), ((Number) x).longValue(), where);
+                    } else if (r.get(k) instanceof Boolean) {
+                        assertEquals(r.getBoolean(k), x, where);
+                    } else if (sf.dataType() instanceof org.apache.spark.sql.types.ArrayType) {
+                        String joined = String.join("|", r.<String>getList(k));
+                        assertEquals(joined, x == null ? "" : String.valueOf(x).trim(), where);
+                    } else {
+                        assertEquals(r.getString(k), String.valueOf(x).trim(), where);
+                    }
+                    compared++;
+                }
+            }
+        }
+
+        // VOTable, read by the JDK's XML parser: FIELD unit and ucd, one TD per cell (IVOA VOTable 1.4)
+        Document doc = DocumentBuilderFactory.newInstance().newDocumentBuilder().parse(vot.toFile());
+        NodeList fieldNodes = doc.getElementsByTagName("FIELD");
+        assertEquals(schema.size(), fieldNodes.getLength(), "votable columns");
+        Map<String, Element> fields = new HashMap<>();
+        List<String> order = new ArrayList<>();
+        for (int i = 0; i < fieldNodes.getLength(); i++) {
+            Element e = (Element) fieldNodes.item(i);
+            fields.put(e.getAttribute("name"), e);
+            order.add(e.getAttribute("name"));
+        }
+        for (StructField sf : schema.fields()) {
+            Element e = fields.get(sf.name());
+            assertNotNull(e, "votable column " + sf.name());
+            String unit = sf.metadata().contains(DerivedSchema.META_UNIT) ? sf.metadata().getString(DerivedSchema.META_UNIT) : "";
+            assertEquals(unit, e.getAttribute("unit"), "votable unit " + sf.name());
+            if (sf.metadata().contains(DerivedSchema.META_UCD)) {
+                assertEquals(sf.metadata().getString(DerivedSchema.META_UCD), e.getAttribute("ucd"), "votable UCD " + sf.name());
+            }
+        }
+        List<String> ignored = new ArrayList<>();
+        List<List<String>> rows = votableRows(vot, ignored);
+        assertEquals(cat.size(), rows.size(), "votable rows");
+        java.util.Set<Long> seenV = new java.util.HashSet<>();
+        for (List<String> tds : rows) {
+            long starId = Long.parseLong(tds.get(order.indexOf(id)).trim());
+            assertTrue(seenV.add(starId), "votable id once: " + starId);
+            Row r = cat.get(starId);
+            assertNotNull(r, "votable id " + starId);
+            for (int k = 0; k < schema.size(); k++) {
+                StructField sf = schema.fields()[k];
+                Element fe = fields.get(sf.name());
+                String td = tds.get(order.indexOf(sf.name())).trim();
+                String where = "votable id " + starId + " " + sf.name();
+                if (r.isNullAt(k)) {
+                    NodeList values = fe.getElementsByTagName("VALUES");
+                    String nullValue = values.getLength() > 0 ? ((Element) values.item(0)).getAttribute("null") : "";
+                    assertTrue(td.isEmpty() || td.equals("NaN") || td.equals(nullValue), where + ": null as '" + td + "'");
+                } else if (r.get(k) instanceof Float) {
+                    assertEquals(r.getFloat(k), Float.parseFloat(td), 0f, where);
+                } else if (r.get(k) instanceof Double) {
+                    assertEquals(r.getDouble(k), Double.parseDouble(td), 0.0, where);
+                } else if (r.get(k) instanceof Number) {
+                    assertEquals(((Number) r.get(k)).longValue(), Long.parseLong(td), where);
+                } else if (r.get(k) instanceof Boolean) {
+                    assertEquals(r.getBoolean(k) ? "T" : "F", td.substring(0, 1).toUpperCase(), where);
+                } else if (sf.dataType() instanceof org.apache.spark.sql.types.ArrayType) {
+                    assertEquals(String.join("|", r.<String>getList(k)), td, where);
+                } else {
+                    assertEquals(r.getString(k), td, where);
+                }
+                compared++;
+            }
+        }
+        assertEquals(2 * 400 * schema.size(), compared, "every cell of both files compared");
     }
 
     /** The VOTable read with the JDK's XML parser: FIELD names and the TD texts of each TR. */

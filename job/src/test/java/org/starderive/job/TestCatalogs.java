@@ -99,6 +99,57 @@ final class TestCatalogs {
         frame(spark, rows).repartition(2).write().partitionBy("tile").parquet(dir.toString());
     }
 
+    /**
+     * The units a survey file would carry on the canonical columns (parallaxes in mas, magnitudes and E(B-V) in mag,
+     * as VOUnits writes them); the rest have none.
+     */
+    static java.util.Map<String, String> canonicalUnits() {
+        java.util.Map<String, String> m = new java.util.HashMap<>();
+        for (StructField f : schema().fields()) {
+            if (f.name().startsWith("parallax")) {
+                m.put(f.name(), "mas");
+            } else if (f.name().startsWith("mag_") || f.name().equals("ebv")) {
+                m.put(f.name(), "mag");
+            }
+        }
+        return m;
+    }
+
+    /**
+     * Writes rows as one FITS binary table or one TABLEDATA VOTable, by STIL's writers (the library the job reads them
+     * with; the export test reads STIL's files with astropy). Units from {@code units} (column name to unit string);
+     * null values as each format writes them (FITS: NaN for floating point, TNULL for integers; VOTable: empty cells).
+     */
+    static void writeTableFile(List<Row> rows, StructType schema, Path file, String format, java.util.Map<String, String> units) {
+        StructField[] fs = schema.fields();
+        uk.ac.starlink.table.ColumnInfo[] infos = new uk.ac.starlink.table.ColumnInfo[fs.length];
+        for (int i = 0; i < fs.length; i++) {
+            DataType t = fs[i].dataType();
+            Class<?> c = t.equals(DataTypes.LongType) ? Long.class : t.equals(DataTypes.IntegerType) ? Integer.class
+                    : t.equals(DataTypes.DoubleType) ? Double.class : t.equals(DataTypes.FloatType) ? Float.class : String.class;
+            infos[i] = new uk.ac.starlink.table.ColumnInfo(fs[i].name(), c, null);
+            if (units.containsKey(fs[i].name())) {
+                infos[i].setUnitString(units.get(fs[i].name()));
+            }
+        }
+        uk.ac.starlink.table.RowListStarTable t = new uk.ac.starlink.table.RowListStarTable(infos);
+        for (Row r : rows) {
+            Object[] v = new Object[fs.length];
+            for (int i = 0; i < fs.length; i++) {
+                v[i] = r.get(i);
+            }
+            t.addRow(v);
+        }
+        try (java.io.OutputStream os = Files.newOutputStream(file)) {
+            uk.ac.starlink.table.StarTableWriter w = format.equals("fits") ? new uk.ac.starlink.fits.FitsTableWriter()
+                    : new uk.ac.starlink.votable.VOTableWriter(uk.ac.starlink.votable.DataFormat.TABLEDATA, true,
+                    uk.ac.starlink.votable.VOTableVersion.V14);
+            w.writeStarTable(t, os);
+        } catch (IOException e) {
+            throw new UncheckedIOException(e);
+        }
+    }
+
     /** SHA-256 of every file under dir, by relative path: equal maps mean byte-identical trees. */
     static TreeMap<String, String> treeHash(Path dir) {
         TreeMap<String, String> m = new TreeMap<>();

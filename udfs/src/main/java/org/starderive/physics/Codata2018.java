@@ -16,6 +16,6 @@ public final class Codata2018 {
     /** Standard uncertainty of G. */
     public static final double G_UNCERTAINTY = 0.00015e-11;
 
-    public static final Constant SIGMA_SB = Constant.of("Stefan-Boltzmann sigma", SIGMA_SB_W_M2_K4, 0, "W m-2 K-4", REF);
-    public static final Constant G = Constant.of("G", G_M3_KG_S2, G_UNCERTAINTY, "m3 kg-1 s-2", REF);
+    public static final Constant SIGMA_SB = Constant.of("Stefan-Boltzmann sigma", SIGMA_SB_W_M2_K4, 0, "W.m**-2.K**-4", REF);
+    public static final Constant G = Constant.of("G", G_M3_KG_S2, G_UNCERTAINTY, "m**3.kg**-1.s**-2", REF);
 }

@@ -27,7 +27,7 @@ public final class DerivedConstants {
     public static final Constant M_SUN = Constant.derived("M_sun", M_SUN_KG,
             M_SUN_KG * Codata2018.G_UNCERTAINTY / Codata2018.G_M3_KG_S2, "kg", "(GM)_sun (IAU 2015 B3) / G (CODATA 2018)");
     public static final Constant RHO_SUN = Constant.derived("mean solar density", RHO_SUN_KG_M3,
-            RHO_SUN_KG_M3 * Codata2018.G_UNCERTAINTY / Codata2018.G_M3_KG_S2, "kg m-3", "M_sun and R_sun (IAU 2015 B3)");
-    public static final Constant G_SUN = Constant.derived("solar surface gravity", G_SUN_M_S2, 0, "m s-2", "(GM)_sun and R_sun (IAU 2015 B3)");
+            RHO_SUN_KG_M3 * Codata2018.G_UNCERTAINTY / Codata2018.G_M3_KG_S2, "kg.m**-3", "M_sun and R_sun (IAU 2015 B3)");
+    public static final Constant G_SUN = Constant.derived("solar surface gravity", G_SUN_M_S2, 0, "m.s**-2", "(GM)_sun and R_sun (IAU 2015 B3)");
     public static final Constant MBOL_SUN = Constant.derived("M_bol,sun (IAU scale)", MBOL_SUN_IAU, 0, "mag", "L_sun (IAU 2015 B3) and L_0 (IAU 2015 B2)");
 }

@@ -29,8 +29,8 @@ public final class Iau2015 {
     public static final Constant R_SUN = Constant.of("R_sun nominal", R_SUN_M, 0, "m", B3);
     public static final Constant L_SUN = Constant.of("L_sun nominal", L_SUN_W, 0, "W", B3);
     public static final Constant TEFF_SUN = Constant.of("Teff_sun nominal", TEFF_SUN_K, 0, "K", B3);
-    public static final Constant S_SUN = Constant.of("S_sun nominal", S_SUN_W_M2, 0, "W m-2", B3);
-    public static final Constant GM_SUN = Constant.of("(GM)_sun nominal", GM_SUN_M3_S2, 0, "m3 s-2", B3);
+    public static final Constant S_SUN = Constant.of("S_sun nominal", S_SUN_W_M2, 0, "W.m**-2", B3);
+    public static final Constant GM_SUN = Constant.of("(GM)_sun nominal", GM_SUN_M3_S2, 0, "m**3.s**-2", B3);
     public static final Constant L0 = Constant.of("L_0 (M_bol = 0)", L0_W, 0, "W", B2);
-    public static final Constant F0 = Constant.of("f_0 (m_bol = 0)", F0_W_M2, 0, "W m-2", B2);
+    public static final Constant F0 = Constant.of("f_0 (m_bol = 0)", F0_W_M2, 0, "W.m**-2", B2);
 }

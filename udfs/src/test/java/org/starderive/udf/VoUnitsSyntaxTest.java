@@ -194,6 +194,38 @@ class VoUnitsSyntaxTest {
         assertTrue(checked >= 60, "units checked: " + checked);
     }
 
+    /** The classes holding the {@code Constant}s the run manifest lists (its {@code methods.constants}). */
+    static final List<Class<?>> CONSTANT_HOLDERS = List.of(org.starderive.physics.Iau2015.class,
+            org.starderive.physics.Iau2012.class, org.starderive.physics.Codata2018.class,
+            org.starderive.physics.DerivedConstants.class, org.starderive.physics.BolometricCorrectionFlower1996.class);
+
+    /** Every public static Constant of the holder classes (the manifest's constants are among them). */
+    static List<org.starderive.physics.Constant> allConstants() throws IllegalAccessException {
+        List<org.starderive.physics.Constant> out = new ArrayList<>();
+        for (Class<?> h : CONSTANT_HOLDERS) {
+            for (java.lang.reflect.Field f : h.getFields()) {
+                if (f.getType() == org.starderive.physics.Constant.class && java.lang.reflect.Modifier.isStatic(f.getModifiers())) {
+                    out.add((org.starderive.physics.Constant) f.get(null));
+                }
+            }
+        }
+        return out;
+    }
+
+    @Test
+    void everyConstantUnitIsVoUnits() throws IllegalAccessException {
+        // the run manifest prints these units beside the constants' values
+        List<org.starderive.physics.Constant> all = allConstants();
+        for (org.starderive.physics.Constant c : all) {
+            assertEquals(List.of(), problems(c.unit()), c.name() + " unit '" + c.unit() + "'");
+        }
+        // the constants of the manifest, each with a unit: radius, luminosity, Teff, GM, L0, au, sigma, G, pc, mass,
+        // two solar bolometric magnitudes, plus S_sun, f_0, V_sun, density and gravity
+        assertTrue(all.size() >= 12, "constants checked: " + all.size());
+        assertEquals(List.of(), problems(org.starderive.physics.Codata2018.G.unit()));
+        assertEquals("m**3.kg**-1.s**-2", org.starderive.physics.Codata2018.G.unit(), "CODATA 2018: G in m^3 kg^-1 s^-2");
+    }
+
     @Test
     void checkerRejectsWhatVoUnitsDoesNot() {
         // the two spellings this project used before: FITS-style implicit powers are not VOUnits
@@ -204,6 +236,10 @@ class VoUnitsSyntaxTest {
         assertFalse(problems("Lsun").isEmpty(), "the solar luminosity is solLum");
         assertFalse(problems("dex").isEmpty(), "dex is not a VOUnits symbol");
         assertFalse(problems("log(cm.s**-2").isEmpty(), "unbalanced parenthesis");
+        // the manifest's constants before they were VOUnits: FITS-style products and powers
+        assertFalse(problems("W m-2 K-4").isEmpty());
+        assertFalse(problems("m3 kg-1 s-2").isEmpty());
+        assertFalse(problems("m3.s**-2").isEmpty(), "m3 is no power in VOUnits");
         // and accepts the forms the Recommendation gives
         assertEquals(List.of(), problems("km.s**-1"));
         assertEquals(List.of(), problems("m**(-2)"));
