@@ -273,4 +273,55 @@ class ChainStepsTest {
         StarResult wide = new StarDeriver(DeriveSettings.builder().diameterDisagreeSigma(100).build()).derive(in, new StarResult());
         assertFalse(wide.has(DIAMETER_DISAGREE), String.valueOf(QualityFlag.names(wide.flags)));
     }
+
+    /**
+     * The definitions that tie the outputs together, with the constants typed here from their standards: IAU 2015
+     * Resolution B3 (R⊙ = 6.957e8 m, L⊙ = 3.828e26 W, Teff⊙ = 5772 K, GM⊙ = 1.3271244e20 m³ s⁻²), B2 (L₀ = 3.0128e28 W), IAU 2012 B2 (au = 149 597 870 700 m; pc = au · 648000/π), CODATA 2018 (G = 6.67430e-11 m³ kg⁻¹ s⁻²).
+     * Checked on stars of three regimes and both L/R routes: Barnard's star (M-dwarf radius route), the solar twin
+     * (BC route), Sirius A (hot star).
+     */
+    @Test
+    void outputsObeyTheirDefinitionsWithTheStandardsConstants() {
+        double rSunM = 6.957e8;
+        double lSunW = 3.828e26;
+        double teffSunK = 5772;
+        double gmSun = 1.3271244e20;
+        double g = 6.67430e-11;
+        double pcM = 149_597_870_700.0 * 648_000 / Math.PI;
+        double masPerRad = 180 / Math.PI * 3600 * 1000;
+        StarInput sirius = new StarInput().parallax(379.21, 1.58).magnitude(Band.V, -1.46, 0.01)
+                .magnitude(Band.B, -1.46, 0.01).ebv(0, 0.005).feh(0.5, 0.1);
+        StarInput[] stars = {RegimeTest.barnardsStar(), sunAt(100, 0.01), sirius};
+        Regime[] regimes = {Regime.M_DWARF, Regime.FGK_DWARF, Regime.HOT};
+        for (int i = 0; i < stars.length; i++) {
+            StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(stars[i], new StarResult());
+            String what = regimes[i].toString();
+            assertEquals(regimes[i], r.regime, what);
+            // Stefan–Boltzmann: L = R² (Teff/Teff⊙)⁴
+            assertEquals(r.radiusRsun * r.radiusRsun * Math.pow(r.teffK / teffSunK, 4), r.lumLsun, 1e-9 * r.lumLsun, what);
+            assertEquals(r.lumLsun * lSunW, r.lumW, 1e-9 * r.lumW, what);
+            // M_bol = −2.5 log10(L / L₀), L₀ = 3.0128e28 W (IAU 2015 B2 zero point; M_bol,⊙ = 4.74 rounded)
+            assertEquals(-2.5 * Math.log10(r.lumW / 3.0128e28), r.mbolMag, 1e-9, what);
+            // θ = 2R/d
+            double theta = 2 * r.radiusRsun * rSunM / (r.distPc * pcM) * masPerRad;
+            assertEquals(theta, r.angDiamMas, 1e-9 * theta, what);
+            // ρ = M / (4/3 π R³), M⊙ = GM⊙ / G
+            double mKg = r.massMsun * gmSun / g;
+            double rM = r.radiusRsun * rSunM;
+            double rho = mKg / (4.0 / 3.0 * Math.PI * rM * rM * rM);
+            assertEquals(rho, r.densityKgM3, 1e-4 * rho, what);
+            assertEquals(r.massMsun / Math.pow(r.radiusRsun, 3), r.densitySun, 1e-9 * r.densitySun, what);
+            // log g = log10(G M / R²) in cgs (1 m s⁻² = 100 cm s⁻²)
+            assertEquals(Math.log10(r.massMsun * gmSun / (rM * rM) * 100), r.loggCgs, 1e-6, what);
+            // the relative errors of ρ and log g exceed neither their parts' sum nor fall below the mass part alone
+            // when R and M errors are independent (error propagation, common practice): ρ ∝ M R⁻³
+            double relM = r.massErrMsun / r.massMsun;
+            double relR = r.radiusErrRsun / r.radiusRsun;
+            double relRho = r.densityErrKgM3 / r.densityKgM3;
+            assertTrue(relRho <= relM + 3 * relR + 1e-12, what + ": density error " + relRho);
+            assertTrue(relRho >= Math.abs(relM - 3 * relR) - 1e-12, what + ": density error " + relRho);
+            double sLnG = r.loggErrCgs * Math.log(10);
+            assertTrue(sLnG <= relM + 2 * relR + 1e-12 && sLnG >= Math.abs(relM - 2 * relR) - 1e-12, what + ": log g error " + sLnG);
+        }
+    }
 }
