@@ -324,4 +324,16 @@ class ChainStepsTest {
             assertTrue(sLnG <= relM + 2 * relR + 1e-12 && sLnG >= Math.abs(relM - 2 * relR) - 1e-12, what + ": log g error " + sLnG);
         }
     }
+
+    @Test
+    void aSolarColouredStarBrighterThanAnyMainSequenceStarIsEvolved() {
+        // the solar twin's colours at 20 kpc with its V kept: M_V = 4.81 − 16.5 = −11.7, L ≈ 10^6.6 L⊙ — brighter than
+        // the top of the main-sequence mass–luminosity relation (Eker et al. 2018, 31 M⊙, log L ≈ 5.6): a supergiant
+        // by its luminosity alone (common practice), so evolved, with no main-sequence mass
+        StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(sunAt(0.05, 0.0005), new StarResult());
+        assertTrue(Math.log10(r.lumLsun) > MassLuminosityEker2018.LOGL_MAX, "log L " + Math.log10(r.lumLsun));
+        assertEquals(LuminosityClass.EVOLVED, r.lumClass);
+        assertTrue(Double.isNaN(r.massMsun) && r.has(MASS_NOT_APPLICABLE));
+        assertFalse(r.has(LUM_CLASS_ASSUMED), "the class is known from the distance");
+    }
 }
