@@ -336,4 +336,48 @@ class ChainStepsTest {
         assertTrue(Double.isNaN(r.massMsun) && r.has(MASS_NOT_APPLICABLE));
         assertFalse(r.has(LUM_CLASS_ASSUMED), "the class is known from the distance");
     }
+
+    /**
+     * TEFF_COLOURS_DISAGREE at p = 0.01 with n − 1 degrees of freedom for n colours: a star with two colours (1 degree
+     * of freedom) is flagged from χ² = 6.635 on, the 99th percentile of χ²₁ (standard tables, e.g. Abramowitz &amp;
+     * Stegun 1964, Table 26.8; also Commons Math's ChiSquaredDistribution). Between that and the 3-degree value (11.345)
+     * only the right number of degrees of freedom flags the star.
+     */
+    @Test
+    void twoColoursAreJudgedWithOneDegreeOfFreedom() {
+        StarDeriver d = new StarDeriver(DeriveSettings.defaults());
+        // the solar twin with only V, B and Ks: two colours, B−V and V−Ks; B shifted until χ² lies in (6.635, 11.345)
+        boolean seen = false;
+        for (double shift = 0.0; shift <= 0.3 && !seen; shift += 0.002) {
+            StarInput in = sunAt(100, 0.01);
+            in.hasMag[Band.IC.ordinal()] = false;
+            in.hasMag[Band.J.ordinal()] = false;
+            in.mag[Band.B.ordinal()] += shift;
+            StarResult r = d.derive(in, new StarResult());
+            assertEquals(2, Long.bitCount(r.teffRelations), r.teffFrom());
+            if (r.teffChi2 < 6.635) {
+                assertFalse(r.has(TEFF_COLOURS_DISAGREE), "chi2 " + r.teffChi2);
+            } else if (r.teffChi2 < 11.345) {
+                assertTrue(r.has(TEFF_COLOURS_DISAGREE), "chi2 " + r.teffChi2);
+                seen = true;
+            }
+        }
+        assertTrue(seen, "no shift of B put chi2 between the 1- and 3-degree critical values");
+    }
+
+    @Test
+    void hotStarUncertaintyFlagFollowsItsThresholdExactly() {
+        // the B star of RegimeTest with E(B−V) ± 0.05: flagged when its relative Teff error exceeds the threshold
+        StarInput in = new StarInput().parallax(5, 0.05).magnitude(Band.V, 6.0, 0.01).magnitude(Band.B, 5.9, 0.01)
+                .ebv(0.1, 0.05).feh(0, 0.1);
+        StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
+        double frac = r.teffErrK / r.teffK;
+        StarResult below = new StarDeriver(DeriveSettings.builder().hotTeffErrFracMax(frac * 0.999).build()).derive(in, new StarResult());
+        StarResult above = new StarDeriver(DeriveSettings.builder().hotTeffErrFracMax(frac * 1.001).build()).derive(in, new StarResult());
+        assertTrue(below.has(HOT_TEFF_UNCERTAIN), "threshold just below the error fraction " + frac);
+        assertFalse(above.has(HOT_TEFF_UNCERTAIN), "threshold just above the error fraction " + frac);
+        // a cool star is never judged by it, however small the threshold
+        StarResult twin = new StarDeriver(DeriveSettings.builder().hotTeffErrFracMax(1e-6).build()).derive(sunAt(100, 0.01), new StarResult());
+        assertFalse(twin.has(HOT_TEFF_UNCERTAIN));
+    }
 }
