@@ -102,6 +102,7 @@ class StarDeriverTest {
                 .ebv(0, 0).feh(0, 0.1);
         StarResult r = deriver.derive(in, out);
         assertEquals(LuminosityClass.EVOLVED, r.lumClass);
+        assertEquals(Regime.GIANT, r.regime, "a giant relation gave its Teff: the giant regime (Regime table)");
         assertEquals("GHB09/V-Ks", r.teffFrom());
         assertEquals(teff, r.teffK, 1);
         assertEquals(10.0, r.radiusRsun, 0.05);
