@@ -705,6 +705,7 @@ public final class StarDeriver {
         out.bcV = out.bcVErr = out.mbolMag = out.mbolErrMag = Double.NaN;
         out.lumLsun = out.lumErrLsun = out.lumW = out.radiusRsun = out.radiusErrRsun = Double.NaN;
         out.angDiamMas = out.angDiamErrMas = Double.NaN;
+        out.radiusMksWeight = Double.NaN;
         wRadiusM = 0;
         if (Double.isNaN(tMean)) {
             return;
@@ -817,6 +818,7 @@ public final class StarDeriver {
         out.lumW = out.lumLsun * Iau2015.L_SUN_W;
         out.radiusRsun = Math.sqrt(out.lumLsun) * tRatio2;
         out.radiusErrRsun = vo ? Double.NaN : out.radiusRsun * norm(cLnR);
+        out.radiusMksWeight = w;
     }
 
     /** Whether the M-dwarf radius relation can be used: a distance and an absolute Ks inside its range. */
@@ -876,6 +878,7 @@ public final class StarDeriver {
             }
         }
         out.massMsun = m;
+        out.massMksWeight = w;
         out.massErrMsun = m * Math.sqrt(varLnM);
         out.densitySun = m / (r * r * r);
         out.densityKgM3 = out.densitySun * DerivedConstants.RHO_SUN_KG_M3;
