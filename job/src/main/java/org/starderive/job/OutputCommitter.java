@@ -149,7 +149,7 @@ public final class OutputCommitter {
             }
             checkExisting();
             if (!fs.mkdirs(staging)) {
-                throw cannotCreateStaging();
+                throw JobException.output("Output " + output + ": cannot create " + staging + " (rule: the output's parent must be writable)");
             }
             fs.delete(staging, true); // Spark creates it again; we only proved we can
         } catch (IOException e) {
@@ -158,30 +158,18 @@ public final class OutputCommitter {
     }
 
     /**
-     * The checks of {@link #prepare} that only read, for a run that must not write ({@code check}): the output's
-     * placement against the inputs, the mode's rule on an existing output, and whether the staging folder could be
-     * created — judged from the nearest existing ancestor (a file refuses as {@code mkdirs} would; a folder must be
-     * writable by this user) instead of by creating it. Takes no lease and undoes nothing; returns what {@link #prepare}
-     * would do first and change the outcome: a commit left half done by a killed run (derive undoes it before these
-     * checks), or null.
+     * The checks of {@link #prepare} that only read, in its order, for a run that must not write ({@code check}): the
+     * output's placement against the inputs, the lease ({@link OutputLease#inspect}: a writable parent, no live holder),
+     * the mode's rule on an existing output. Takes no lease, creates no staging folder and undoes nothing; returns what
+     * {@link #prepare} would do first that can change the outcome — a commit left half done by a killed run, which
+     * derive undoes before the existing-output check — or null.
      */
-    public String inspect(List<String> inputPaths, Configuration conf) {
+    public String inspect(List<String> inputPaths, Configuration conf, double leaseStaleAfterS) {
         checkPlacement(inputPaths, conf);
+        OutputLease.inspect(fs, output, leaseStaleAfterS);
         try {
             String pending = pendingRecovery();
             checkExisting();
-            Path p = output;
-            while (p != null && !fs.exists(p)) {
-                p = p.getParent();
-            }
-            if (p == null || !fs.getFileStatus(p).isDirectory()) {
-                throw cannotCreateStaging();
-            }
-            try {
-                fs.access(p, org.apache.hadoop.fs.permission.FsAction.WRITE);
-            } catch (org.apache.hadoop.security.AccessControlException e) {
-                throw cannotCreateStaging();
-            }
             return pending;
         } catch (IOException e) {
             throw notWritable(e);
@@ -215,10 +203,6 @@ public final class OutputCommitter {
         if (exists && !fs.getFileStatus(output).isDirectory()) {
             throw JobException.output("Output " + output + " is a file (rule: the output is a folder)");
         }
-    }
-
-    private JobException cannotCreateStaging() {
-        return JobException.output("Output " + output + ": cannot create " + staging + " (rule: the output's parent must be writable)");
     }
 
     private JobException notWritable(IOException e) {
