@@ -196,6 +196,11 @@ public final class DeriveCheck {
         Dataset<Row> derivedLocal = spark.createDataFrame(derivedRows, toWrite.schema());
         r.sampledRows = derivedRows.size();
         physics(r, joined, canonical, config);
+        if (inputs.twoTables()) {
+            r.section(r.sections.keySet().stream().filter(k -> k.startsWith("physics")).findFirst().orElseThrow())
+                    .put("note", "rows of one table's sample without a partner in the other's lack that table's columns: "
+                            + "they count as stars without photometry or parallax here");
+        }
 
         for (StructField f : toWrite.schema().fields()) {
             if (!inputs.partitionColumns.contains(f.name())) {

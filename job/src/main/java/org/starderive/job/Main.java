@@ -178,8 +178,9 @@ public final class Main implements Runnable {
 
         @Override
         public Integer call() {
-            if (!(sampleRows >= 1)) {
-                throw JobException.config("Invalid --sample-rows: " + sampleRows + " (must be >= 1)");
+            if (!(sampleRows >= 1 && sampleRows <= 1_000_000)) {
+                throw JobException.config("Invalid --sample-rows: " + sampleRows
+                        + " (must be 1 to 1,000,000: the sample is collected in the driver's memory)");
             }
             DeriveJob.Request req = options.request();
             JobConfig cfg = options.jobConfig();

@@ -202,6 +202,11 @@ class CheckCommandTest {
         sameRefusal(2, out, List.of("survey.yaml", "-3.1"), a.toArray(new String[0]));
         Files.writeString(cfg, "columns:\n  parallax: plx\n");
         sameRefusal(3, out, List.of("plx"), a.toArray(new String[0]));
+        // check's own option (derive has none to compare with): a usage error, exit 2, naming the option and the rule
+        CliRunner badSample = CliRunner.run(with("check", demoArgs(astrometry(), photometry(), out, "--sample-rows", "0")));
+        assertEquals(2, badSample.exitCode, badSample.toString());
+        assertTrue(badSample.err.contains("--sample-rows: 0 (must be 1 to 1,000,000"), badSample.err);
+        assertFalse(Files.exists(out));
         // badCommandLineValues
         sameRefusal(2, out, List.of("--write-mode", "sometimes"), demoArgs(astrometry(), photometry(), out, "--write-mode", "sometimes"));
         sameRefusal(2, out, List.of("--input-format", "fits"), demoArgs(astrometry(), photometry(), out, "--input-format", "fits"));
