@@ -309,4 +309,19 @@ class CheckCommandTest {
             assertEquals(1.0, predicted / bytes, 0.25, "sample " + e[0] + ": predicted " + predicted + " bytes, written " + bytes);
         }
     }
+
+    @Test
+    void aSingleCsvTableIsCheckedToo() throws IOException {
+        // the demo survey's two tables as one CSV table (derive's other reader): the columns are predicted as well
+        Path csv = tmp.resolve("stars-csv");
+        spark.read().parquet(astrometry().toString()).join(spark.read().parquet(photometry().toString()).drop("tile"), "star_id")
+                .coalesce(2).write().option("header", "true").csv(csv.toString());
+        Path out = tmp.resolve("out");
+        String[] args = {"--input", csv.toString(), "--input-format", "csv", "--config", CONFIG, "--output", out.toString()};
+        JsonNode report = checkJson(args);
+        assertEquals("unknown (CSV)", report.path("inputs").path("table").path("rows (footers)").asText(), report.toString());
+        assertFalse(Files.exists(out));
+        assertEquals(0, CliRunner.run(with("derive", args)).exitCode);
+        assertEquals(realColumns(out), predictedColumns(report));
+    }
 }
