@@ -34,6 +34,91 @@ public final class DeriveJob {
         public String inputFormat = "parquet";
         public String outputFormat = "parquet";
         public OutputCommitter.Mode writeMode = OutputCommitter.Mode.FAIL;
+
+        /** Every input path, astrometry (or the one table) first. */
+        public List<String> allInputs() {
+            List<String> all = new ArrayList<>(input);
+            all.addAll(photometry);
+            return all;
+        }
+    }
+
+    /** The checks of the request alone, before any file is looked at (derive's and check's first refusals). */
+    static void checkRequest(Request req) {
+        if (req.input.isEmpty()) {
+            throw JobException.config("Missing --input (at least one input path)");
+        }
+        if (req.output == null) {
+            throw JobException.config("Missing --output");
+        }
+        if (!req.outputFormat.equals("parquet") && !req.outputFormat.equals("csv")) {
+            throw JobException.config("Invalid --output-format: " + req.outputFormat + " (must be parquet or csv)");
+        }
+    }
+
+    /**
+     * The input table(s) opened and checked (paths, files, footers, partition folders, the id column), with the pipeline
+     * that derives them: everything derive checks about its inputs before it reads a row. Writes nothing; derive calls
+     * it holding the output's lease, check without.
+     */
+    static final class Inputs {
+        final String idColumn;
+        final DerivePipeline pipeline;
+        final InputTable astro;
+        /** Null with one table. */
+        final InputTable phot;
+        final List<String> partitionColumns;
+
+        private Inputs(String idColumn, DerivePipeline pipeline, InputTable astro, InputTable phot) {
+            this.idColumn = idColumn;
+            this.pipeline = pipeline;
+            this.astro = astro;
+            this.phot = phot;
+            this.partitionColumns = astro.partitionColumns();
+        }
+
+        boolean twoTables() { return phot != null; }
+
+        List<InputTable> tables() { return phot == null ? List.of(astro) : List.of(astro, phot); }
+
+        /** The table's name in messages. */
+        String tableName() { return twoTables() ? "astrometry+photometry" : astro.role() + " " + astro.paths(); }
+    }
+
+    static Inputs openInputs(SparkSession spark, Request req, JobConfig config) {
+        String idColumn = req.joinOn != null ? req.joinOn : config.idColumn();
+        DerivePipeline pipeline = new DerivePipeline(config, idColumn);
+        boolean twoTables = !req.photometry.isEmpty();
+        InputTable astro = InputTable.open(spark, twoTables ? "astrometry" : "table", req.input, req.inputFormat, config);
+        InputTable phot = twoTables ? InputTable.open(spark, "photometry", req.photometry, req.inputFormat, config) : null;
+        if (req.writeMode == OutputCommitter.Mode.REPLACE_PARTITIONS && astro.partitionColumns().isEmpty()) {
+            throw JobException.config("Invalid --write-mode replace-partitions: input " + req.input
+                    + " has no key=value partition folders (rule: replace-partitions needs a partitioned input)");
+        }
+        if (twoTables) {
+            String aName = astro.role() + " " + astro.paths();
+            if (!astro.data().schema().getFieldIndex(idColumn).isDefined()) {
+                throw JobException.input("Input " + aName + ": missing column '" + idColumn + "' (rule: the star id to join on must exist in both tables)");
+            }
+            if (!phot.data().schema().getFieldIndex(idColumn).isDefined()) {
+                throw JobException.input("Input " + phot.role() + " " + phot.paths() + ": missing column '" + idColumn
+                        + "' (rule: the star id to join on must exist in both tables)");
+            }
+        } else {
+            String name = astro.role() + " " + astro.paths();
+            if (!astro.data().schema().getFieldIndex(idColumn).isDefined()) {
+                throw JobException.input("Input " + name + ": missing column '" + idColumn
+                        + "' (rule: the star id column must exist; set columns.star_id in the config)");
+            }
+        }
+        return new Inputs(idColumn, pipeline, astro, phot);
+    }
+
+    /** An input without rows is refused (rows: the number derive would read). */
+    static void requireRows(Request req, long rows) {
+        if (rows == 0) {
+            throw JobException.input("Input " + req.input + ": the table has no rows (rule: the input must not be empty)");
+        }
     }
 
     /** What happened: the summary printed at the end and returned to callers. */
@@ -71,21 +156,11 @@ public final class DeriveJob {
         long t0 = System.nanoTime();
         Map<String, Double> seconds = new LinkedHashMap<>();
         String runId = Instant.now().toString().replaceAll("[^0-9]", "").substring(0, 14) + "-" + UUID.randomUUID().toString().substring(0, 8);
-        if (req.input.isEmpty()) {
-            throw JobException.config("Missing --input (at least one input path)");
-        }
-        if (req.output == null) {
-            throw JobException.config("Missing --output");
-        }
-        if (!req.outputFormat.equals("parquet") && !req.outputFormat.equals("csv")) {
-            throw JobException.config("Invalid --output-format: " + req.outputFormat + " (must be parquet or csv)");
-        }
+        checkRequest(req);
         Configuration hconf = spark.sparkContext().hadoopConfiguration();
         OutputCommitter committer = new OutputCommitter(hconf, req.output, runId, req.writeMode);
-        List<String> allInputs = new ArrayList<>(req.input);
-        allInputs.addAll(req.photometry);
         try {
-            committer.prepare(allInputs, hconf, config.leaseStaleAfterS());
+            committer.prepare(req.allInputs(), hconf, config.leaseStaleAfterS());
             seconds.put("take_lease", committer.leaseSeconds());
             seconds.put("check_output", (System.nanoTime() - t0) / 1e9);
             // the run's Spark jobs in one group, so that after a failure their last tasks can be waited for
@@ -137,17 +212,14 @@ public final class DeriveJob {
                                            String runId, long t0, Map<String, Double> seconds) {
         Configuration hconf = spark.sparkContext().hadoopConfiguration();
 
-        String idColumn = req.joinOn != null ? req.joinOn : config.idColumn();
-        DerivePipeline pipeline = new DerivePipeline(config, idColumn);
-        boolean twoTables = !req.photometry.isEmpty();
-        InputTable astro = InputTable.open(spark, twoTables ? "astrometry" : "table", req.input, req.inputFormat, config);
-        InputTable phot = twoTables ? InputTable.open(spark, "photometry", req.photometry, req.inputFormat, config) : null;
+        Inputs inputs = openInputs(spark, req, config);
         seconds.put("open_inputs", (System.nanoTime() - t0) / 1e9);
-        List<String> partitionColumns = astro.partitionColumns();
-        if (req.writeMode == OutputCommitter.Mode.REPLACE_PARTITIONS && partitionColumns.isEmpty()) {
-            throw JobException.config("Invalid --write-mode replace-partitions: input " + req.input
-                    + " has no key=value partition folders (rule: replace-partitions needs a partitioned input)");
-        }
+        String idColumn = inputs.idColumn;
+        DerivePipeline pipeline = inputs.pipeline;
+        boolean twoTables = inputs.twoTables();
+        InputTable astro = inputs.astro;
+        InputTable phot = inputs.phot;
+        List<String> partitionColumns = inputs.partitionColumns;
 
         Dataset<Row> joined;
         RowCensus expected;
@@ -155,34 +227,19 @@ public final class DeriveJob {
         facts.put("run_id", runId);
         facts.put("started_utc", Instant.now().toString());
         if (twoTables) {
-            String aName = astro.role() + " " + astro.paths();
-            if (!astro.data().schema().getFieldIndex(idColumn).isDefined()) {
-                throw JobException.input("Input " + aName + ": missing column '" + idColumn + "' (rule: the star id to join on must exist in both tables)");
-            }
-            if (!phot.data().schema().getFieldIndex(idColumn).isDefined()) {
-                throw JobException.input("Input " + phot.role() + " " + phot.paths() + ": missing column '" + idColumn
-                        + "' (rule: the star id to join on must exist in both tables)");
-            }
             joined = pipeline.join(astro, phot);
             expected = RowCensus.expectedJoin(astro.data(), phot.data(), idColumn);
             facts.put("join_policy", "full outer join on " + idColumn + ", copy by copy: max(k, j) rows for an id held k and j times;"
                     + " a null, empty or blank id matches nothing (one row each, ID_MISSING)");
         } else {
-            String name = astro.role() + " " + astro.paths();
-            if (!astro.data().schema().getFieldIndex(idColumn).isDefined()) {
-                throw JobException.input("Input " + name + ": missing column '" + idColumn
-                        + "' (rule: the star id column must exist; set columns.star_id in the config)");
-            }
             long ts = System.nanoTime();
-            DerivePipeline.IdScan scan = pipeline.scanIds(astro.data(), name);
+            DerivePipeline.IdScan scan = pipeline.scanIds(astro.data(), inputs.tableName());
             seconds.put("scan_ids", (System.nanoTime() - ts) / 1e9);
             joined = pipeline.markDuplicates(astro.data(), scan);
             expected = scan.census;
         }
-        if (expected.rows == 0) {
-            throw JobException.input("Input " + req.input + ": the table has no rows (rule: the input must not be empty)");
-        }
-        String tableName = twoTables ? "astrometry+photometry" : astro.role() + " " + astro.paths();
+        requireRows(req, expected.rows);
+        String tableName = inputs.tableName();
         Dataset<Row> derived = pipeline.derive(joined, tableName, partitionColumns);
         DataType idType = derived.schema().apply(idColumn).dataType();
         seconds.put("check_inputs", (System.nanoTime() - t0) / 1e9);

@@ -98,19 +98,25 @@ public final class DerivePipeline {
 
     /** Joins astrometry and photometry by the policy above (missing ids paired with nothing); adds the duplicate marker. */
     public Dataset<Row> join(InputTable astro, InputTable phot) {
-        Dataset<Row> a = astro.data();
-        Dataset<Row> p = phot.data();
+        return join(astro.data(), astro.role(), astro.paths(), phot.data(), phot.role(), phot.paths());
+    }
+
+    /** As {@link #join(InputTable, InputTable)}, on the rows {@code a} and {@code p} of the two tables (check: samples). */
+    public Dataset<Row> join(Dataset<Row> astroRows, String astroRole, List<String> astroPaths,
+                             Dataset<Row> photRows, String photRole, List<String> photPaths) {
+        Dataset<Row> a = astroRows;
+        Dataset<Row> p = photRows;
         if (!a.schema().getFieldIndex(idColumn).isDefined()) {
-            throw missing(astro.role() + " " + astro.paths(), idColumn, "the star id to join on");
+            throw missing(astroRole + " " + astroPaths, idColumn, "the star id to join on");
         }
         if (!p.schema().getFieldIndex(idColumn).isDefined()) {
-            throw missing(phot.role() + " " + phot.paths(), idColumn, "the star id to join on");
+            throw missing(photRole + " " + photPaths, idColumn, "the star id to join on");
         }
         DataType ta = a.schema().apply(idColumn).dataType();
         DataType tp = p.schema().apply(idColumn).dataType();
         if (!ta.equals(tp)) {
-            throw JobException.input("Input " + phot.role() + ": id column '" + idColumn + "' has type " + tp.simpleString()
-                    + " but " + ta.simpleString() + " in " + astro.role() + " (rule: the join key has one type in both tables)");
+            throw JobException.input("Input " + photRole + ": id column '" + idColumn + "' has type " + tp.simpleString()
+                    + " but " + ta.simpleString() + " in " + astroRole + " (rule: the join key has one type in both tables)");
         }
         a = withOccurrence(a, "a");
         p = withOccurrence(p, "p");
@@ -121,8 +127,8 @@ public final class DerivePipeline {
             cond = cond.and(not(idMissing(a.col(idColumn), ta)));
         }
         Dataset<Row> j = a.join(p, cond, "full_outer");
-        Set<String> aCols = new LinkedHashSet<>(List.of(astro.data().columns()));
-        Set<String> pCols = new LinkedHashSet<>(List.of(phot.data().columns()));
+        Set<String> aCols = new LinkedHashSet<>(List.of(astroRows.columns()));
+        Set<String> pCols = new LinkedHashSet<>(List.of(photRows.columns()));
         List<Column> sel = new ArrayList<>();
         Column aPresent = a.col(OCC_COL).isNotNull();
         for (String c : aCols) {

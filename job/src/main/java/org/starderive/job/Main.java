@@ -17,7 +17,7 @@ import picocli.CommandLine.Option;
 @Command(name = "starderive", mixinStandardHelpOptions = true, versionProvider = Main.Version.class,
         description = "Derived stellar parameters (distance, Teff, L, R, M, log g, angular diameter) with uncertainties and "
                 + "quality flags for survey catalogues, as an Apache Spark batch job.",
-        subcommands = {Main.Derive.class, Main.Export.class, Main.Sample.class, Main.Report.class, Main.Recovery.class, Main.Rewrite.class,
+        subcommands = {Main.Check.class, Main.Derive.class, Main.Export.class, Main.Sample.class, Main.Report.class, Main.Recovery.class, Main.Rewrite.class,
                 CommandLine.HelpCommand.class})
 public final class Main implements Runnable {
 
@@ -37,14 +37,11 @@ public final class Main implements Runnable {
         }
     }
 
-    @Command(name = "derive", mixinStandardHelpOptions = true, sortOptions = false,
-            description = "Derive the stellar parameters of every row of a catalogue and write the derived catalogue.")
-    static final class Derive implements Callable<Integer> {
-        @CommandLine.Spec
-        CommandLine.Model.CommandSpec spec;
-
+    /** The options of derive, shared with check (which must accept exactly what derive accepts). */
+    static class DeriveOptions {
         @Option(names = "--input", required = true, arity = "1..*", paramLabel = "PATH",
-                description = "Input table(s): folders of (Hive-style partitioned) Parquet or CSV files. With --photometry, "
+                description = "Input table(s): folders of (Hive-style partitioned) Parquet or CSV files, or FITS / VOTable files (see "
+                        + "--input-format). With --photometry, "
                         + "the astrometry table.")
         List<String> input = new ArrayList<>();
 
@@ -104,11 +101,8 @@ public final class Main implements Runnable {
                         + "Default: uncertainty.seed of the config, else 1.")
         Long seed;
 
-        @CommandLine.Mixin
-        SparkOptionsMixin spark = new SparkOptionsMixin();
-
-        @Override
-        public Integer call() {
+        /** The request as parsed, with derive's checks of the command line values. */
+        DeriveJob.Request request() {
             DeriveJob.Request req = new DeriveJob.Request();
             req.input = input;
             req.photometry = photometry;
@@ -120,16 +114,83 @@ public final class Main implements Runnable {
             if (!List.of("parquet", "csv", "fits", "votable").contains(inputFormat)) {
                 throw JobException.config("Invalid --input-format: " + inputFormat + " (" + InputTable.FORMATS_RULE + ")");
             }
+            return req;
+        }
+
+        /** The config file (or the defaults) with the command line's layout and uncertainty options applied. */
+        JobConfig jobConfig() {
             JobConfig cfg = config == null ? JobConfig.defaults() : JobConfig.load(config);
             cfg.withLayout(layout, columns);
             if (uncertainty != null || draws != null || seed != null) {
                 cfg.withUncertainty(uncertainty != null ? uncertainty : cfg.uncertaintyMethod(),
                         draws != null ? draws : cfg.draws(), seed != null ? seed : cfg.seed(), "--");
             }
+            return cfg;
+        }
+    }
+
+    @Command(name = "derive", mixinStandardHelpOptions = true, sortOptions = false,
+            description = "Derive the stellar parameters of every row of a catalogue and write the derived catalogue.")
+    static final class Derive implements Callable<Integer> {
+        @CommandLine.Spec
+        CommandLine.Model.CommandSpec spec;
+
+        @CommandLine.Mixin
+        DeriveOptions options = new DeriveOptions();
+
+        @CommandLine.Mixin
+        SparkOptionsMixin spark = new SparkOptionsMixin();
+
+        @Override
+        public Integer call() {
+            DeriveJob.Request req = options.request();
+            JobConfig cfg = options.jobConfig();
             return Sessions.withSession(spark.master, "starderive derive", session -> {
                 DeriveJob.Summary s = DeriveJob.run(session, req, cfg);
                 PrintWriter out = spec.commandLine().getOut();
                 out.print(s.render());
+                out.flush();
+                return 0;
+            });
+        }
+    }
+
+    @Command(name = "check", mixinStandardHelpOptions = true, sortOptions = false,
+            description = "Check a derive run before spending cluster hours on it, writing nothing: takes derive's options, "
+                    + "reads only the inputs' listings, Parquet footers and a small sample, and reports the column mapping and "
+                    + "units, the bands per table, the Teff relations and radius and mass routes the sampled stars would get, "
+                    + "the join key's overlap in the sample, the output columns and an estimate of bytes per star. Exits with "
+                    + "derive's exit code and message at the first problem derive would refuse, 0 when derive would run.")
+    static final class Check implements Callable<Integer> {
+        @CommandLine.Spec
+        CommandLine.Model.CommandSpec spec;
+
+        @CommandLine.Mixin
+        DeriveOptions options = new DeriveOptions();
+
+        @Option(names = "--sample-rows", paramLabel = "N", defaultValue = "2000",
+                description = "Rows read from each input table (the first N in Spark's file order: deterministic for the "
+                        + "same files) and run through the physics core. Default: ${DEFAULT-VALUE}.")
+        int sampleRows;
+
+        @Option(names = "--json", description = "The report as one JSON object instead of text.")
+        boolean json;
+
+        @CommandLine.Mixin
+        SparkOptionsMixin spark = new SparkOptionsMixin();
+
+        @Override
+        public Integer call() {
+            if (!(sampleRows >= 1 && sampleRows <= 1_000_000)) {
+                throw JobException.config("Invalid --sample-rows: " + sampleRows
+                        + " (must be 1 to 1,000,000: the sample is collected in the driver's memory)");
+            }
+            DeriveJob.Request req = options.request();
+            JobConfig cfg = options.jobConfig();
+            return Sessions.withSession(spark.master, "starderive check", session -> {
+                DeriveCheck.Report r = DeriveCheck.run(session, req, cfg, sampleRows);
+                PrintWriter out = spec.commandLine().getOut();
+                out.print(json ? r.json() : r.render());
                 out.flush();
                 return 0;
             });

@@ -133,6 +133,84 @@ public final class OutputCommitter {
      * half done, and removes what completed commits left aside.
      */
     public void prepare(List<String> inputPaths, Configuration conf, double leaseStaleAfterS) {
+        checkPlacement(inputPaths, conf);
+        long tl = System.nanoTime();
+        lease = OutputLease.acquire(fs, output, runId, leaseStaleAfterS);
+        leaseSeconds = (System.nanoTime() - tl) / 1e9;
+        try {
+            recover();
+            FileStatus[] stale = fs.globStatus(new Path(output.getParent(), output.getName() + ".staging-*"));
+            if (stale != null) {
+                for (FileStatus st : stale) {
+                    // under the lease no other run writes this output: a staging folder is a dead run's
+                    fs.delete(st.getPath(), true);
+                    LOG.warn("Removed staging folder {} left by a run that was killed", st.getPath());
+                }
+            }
+            checkExisting();
+            if (!fs.mkdirs(staging)) {
+                throw JobException.output("Output " + output + ": cannot create " + staging + " (rule: the output's parent must be writable)");
+            }
+            fs.delete(staging, true); // Spark creates it again; we only proved we can
+        } catch (IOException e) {
+            throw notWritable(e);
+        }
+    }
+
+    /**
+     * The checks of {@link #prepare} that only read, in its order, for a run that must not write ({@code check}): the
+     * output's placement against the inputs, the lease ({@link OutputLease#inspect}: a writable parent, no live holder),
+     * the mode's rule on an existing output. Takes no lease, creates no staging folder and undoes nothing; returns what
+     * {@link #prepare} would do first that can change the outcome — a commit left half done by a killed run, which
+     * derive undoes before the existing-output check — or null.
+     */
+    public String inspect(List<String> inputPaths, Configuration conf, double leaseStaleAfterS) {
+        checkPlacement(inputPaths, conf);
+        OutputLease.inspect(fs, output, leaseStaleAfterS);
+        try {
+            String pending = pendingRecovery();
+            checkExisting();
+            return pending;
+        } catch (IOException e) {
+            throw notWritable(e);
+        }
+    }
+
+    /** What a killed run left for {@link #recover} to undo, described, or null. Reads only. */
+    private String pendingRecovery() throws IOException {
+        FileStatus[] journals = fs.globStatus(new Path(output.getParent(), "." + output.getName() + ".commit-*.json"));
+        if (journals != null && journals.length > 0) {
+            return journals.length + " commit journal(s) of killed runs beside the output (" + journals[0].getPath().getName()
+                    + "): derive undoes them first";
+        }
+        if (!fs.exists(output) && fs.exists(output.getParent())) {
+            FileStatus[] aside = fs.globStatus(new Path(output.getParent(), "." + output.getName() + ".previous-*"));
+            if (aside != null && aside.length > 0) {
+                return "an output moved aside by a killed run (" + aside[0].getPath().getName()
+                        + "): derive moves it back first, and then the output exists";
+            }
+        }
+        return null;
+    }
+
+    /** The mode's rule on an existing output, and that an existing output is a folder. */
+    private void checkExisting() throws IOException {
+        boolean exists = fs.exists(output);
+        if (exists && mode == Mode.FAIL) {
+            throw JobException.output("Output " + output + " already exists (rule: --write-mode fail never replaces; "
+                    + "use overwrite or replace-partitions)");
+        }
+        if (exists && !fs.getFileStatus(output).isDirectory()) {
+            throw JobException.output("Output " + output + " is a file (rule: the output is a folder)");
+        }
+    }
+
+    private JobException notWritable(IOException e) {
+        return JobException.output("Output " + output + ": not writable (" + e.getMessage() + ")");
+    }
+
+    /** The output outside every input, and no input inside the output. Reads only. */
+    private void checkPlacement(List<String> inputPaths, Configuration conf) {
         String out = output.toUri().getPath();
         for (String in : inputPaths) {
             String ip;
@@ -150,34 +228,6 @@ public final class OutputCommitter {
                 throw JobException.output("Input " + in + " is inside output " + output
                         + " (rule: the output must not contain an input path)");
             }
-        }
-        long tl = System.nanoTime();
-        lease = OutputLease.acquire(fs, output, runId, leaseStaleAfterS);
-        leaseSeconds = (System.nanoTime() - tl) / 1e9;
-        try {
-            recover();
-            FileStatus[] stale = fs.globStatus(new Path(output.getParent(), output.getName() + ".staging-*"));
-            if (stale != null) {
-                for (FileStatus st : stale) {
-                    // under the lease no other run writes this output: a staging folder is a dead run's
-                    fs.delete(st.getPath(), true);
-                    LOG.warn("Removed staging folder {} left by a run that was killed", st.getPath());
-                }
-            }
-            boolean exists = fs.exists(output);
-            if (exists && mode == Mode.FAIL) {
-                throw JobException.output("Output " + output + " already exists (rule: --write-mode fail never replaces; "
-                        + "use overwrite or replace-partitions)");
-            }
-            if (exists && !fs.getFileStatus(output).isDirectory()) {
-                throw JobException.output("Output " + output + " is a file (rule: the output is a folder)");
-            }
-            if (!fs.mkdirs(staging)) {
-                throw JobException.output("Output " + output + ": cannot create " + staging + " (rule: the output's parent must be writable)");
-            }
-            fs.delete(staging, true); // Spark creates it again; we only proved we can
-        } catch (IOException e) {
-            throw JobException.output("Output " + output + ": not writable (" + e.getMessage() + ")");
         }
     }
 

@@ -176,6 +176,36 @@ public final class OutputLease implements AutoCloseable {
         }
     }
 
+    /**
+     * What {@link #acquire} checks before it writes, without writing (the {@code check} sub-command): that the output's
+     * parent can be made (its nearest existing ancestor is a folder this user may write) and that no live run holds the
+     * lease. Refuses as acquire does (exit 4, the same rule); a lease free now may of course be taken before derive runs,
+     * and for an unwritable parent the cause in parentheses is this method's own words, not the file system's.
+     */
+    public static void inspect(FileSystem fs, Path output, double staleAfterS) {
+        try {
+            Path p = output.getParent();
+            while (p != null && !fs.exists(p)) {
+                p = p.getParent();
+            }
+            if (p == null || !fs.getFileStatus(p).isDirectory()) {
+                throw new IOException(p == null ? "no ancestor of it exists" : p + " is a file, not a folder");
+            }
+            fs.access(p, org.apache.hadoop.fs.permission.FsAction.WRITE);
+            List<Long> gens = generations(fs, output);
+            if (!gens.isEmpty()) {
+                Holder h = read(fs, output, gens.get(gens.size() - 1));
+                long now = System.currentTimeMillis();
+                if (h != null && !h.released && staleReason(h, now, staleAfterS).isEmpty()) {
+                    throw busy(output, h, now, staleAfterS);
+                }
+            }
+        } catch (IOException e) {
+            throw JobException.output("Output " + output + ": cannot take the lease beside it (" + e.getMessage()
+                    + ") (rule: the output's parent must be writable)");
+        }
+    }
+
     /** True when generation {@code g} is no longer the newest or has been released since it was read. */
     private static boolean changed(FileSystem fs, Path output, long g) throws IOException {
         List<Long> gens = generations(fs, output);

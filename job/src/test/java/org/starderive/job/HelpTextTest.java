@@ -23,7 +23,8 @@ class HelpTextTest {
                 calls.add(List.of(sub, "--help"));
             }
         }
-        assertTrue(calls.size() >= 7, "sub-commands found: " + calls);
+        assertTrue(calls.size() >= 8, "sub-commands found: " + calls);
+        assertTrue(calls.contains(List.of("check", "--help")), "check is a sub-command: " + calls);
         for (List<String> args : calls) {
             CliRunner r = CliRunner.run(args.toArray(new String[0]));
             assertEquals(0, r.exitCode, args + ": " + r);

@@ -57,6 +57,7 @@ final class LuminosityRadiusStep {
         out.bcV = out.bcVErr = out.mbolMag = out.mbolErrMag = Double.NaN;
         out.lumLsun = out.lumErrLsun = out.lumW = out.radiusRsun = out.radiusErrRsun = Double.NaN;
         out.angDiamMas = out.angDiamErrMas = Double.NaN;
+        out.radiusMksWeight = Double.NaN;
         wRadiusM = 0;
         if (Double.isNaN(tMean)) {
             return;
@@ -172,6 +173,7 @@ final class LuminosityRadiusStep {
         out.lumW = out.lumLsun * Iau2015.L_SUN_W;
         out.radiusRsun = Math.sqrt(out.lumLsun) * tRatio2;
         out.radiusErrRsun = vo ? Double.NaN : out.radiusRsun * StarDeriver.norm(cLnR);
+        out.radiusMksWeight = w;
     }
 
     private static double sq(double x) { return x * x; }

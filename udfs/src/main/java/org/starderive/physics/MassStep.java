@@ -81,6 +81,7 @@ final class MassStep {
             }
         }
         out.massMsun = m;
+        out.massMksWeight = w;
         out.massErrMsun = m * Math.sqrt(varLnM);
         out.densitySun = m / (r * r * r);
         out.densityKgM3 = out.densitySun * DerivedConstants.RHO_SUN_KG_M3;

@@ -58,6 +58,17 @@ public final class StarResult {
     public double angDiamMas;
     public double angDiamErrMas;
     public double angDiamSbrMas;
+    /**
+     * Share of the M-dwarf route in {@link #radiusRsun}: 1 when R comes from M_Ks alone ({@link RadiusMann2015}), 0
+     * when from L (bolometric correction) and Stefan–Boltzmann alone, in between a blend of both; NaN without a radius.
+     * Not an output column: it tells which relation a star used (the {@code check} sub-command counts it).
+     */
+    public double radiusMksWeight;
+    /**
+     * Share of {@link MassMann2019} (from M_Ks) in {@link #massMsun}: 1 Mann et al. 2019 alone, 0
+     * {@link MassLuminosityEker2018} alone, in between a blend; NaN without a mass. Not an output column.
+     */
+    public double massMksWeight;
 
     public StarResult() { clear(); }
 
@@ -75,6 +86,7 @@ public final class StarResult {
         lumLsun = lumErrLsun = lumW = radiusRsun = radiusErrRsun = Double.NaN;
         massMsun = massErrMsun = densityKgM3 = densityErrKgM3 = densitySun = loggCgs = loggErrCgs = Double.NaN;
         angDiamMas = angDiamErrMas = angDiamSbrMas = Double.NaN;
+        radiusMksWeight = massMksWeight = Double.NaN;
         return this;
     }
 

@@ -4,11 +4,14 @@ import org.apache.spark.sql.Row;
 import org.starderive.physics.Band;
 import org.starderive.physics.StarInput;
 
-/** Fills a reused {@link StarInput} from a Row in {@link StarColumns#INPUT_FIELDS} order; SQL NULL means absent. */
-final class StarInputReader {
+/**
+ * Fills a reused {@link StarInput} from a Row in {@link StarColumns#INPUT_FIELDS} order; SQL NULL means absent. Used by
+ * the UDF and by the job's {@code check}, which runs the physics core on a sample in the driver.
+ */
+public final class StarInputReader {
     private final StarInput in = new StarInput();
 
-    StarInput read(Row row) {
+    public StarInput read(Row row) {
         in.clear();
         if (row == null) {
             return in;

@@ -101,6 +101,27 @@ class RegimeTest {
     }
 
     @Test
+    void theRouteOfRadiusAndMassIsReported() {
+        // which relation gave R and M (radiusMksWeight, massMksWeight; read by the job's check): the rules are the
+        // class comment's. Proxima (inputs from memory, as above) is an M dwarf far from the K7-M0 blend with M_Ks 8.8,
+        // inside Mann et al. 2015's radius range and below Eker et al. 2018's mass range: both from M_Ks alone
+        StarResult p = deriver.derive(new StarInput().parallax(768.07, 0.05)
+                .magnitude(Band.V, 11.13, 0.02).magnitude(Band.J, 5.357, 0.023).magnitude(Band.H, 4.835, 0.057)
+                .magnitude(Band.KS, 4.384, 0.033).ebv(0, 0), new StarResult());
+        assertEquals(1.0, p.radiusMksWeight, "Proxima's radius route");
+        assertEquals(1.0, p.massMksWeight, "Proxima's mass route");
+        // the Sun at 10 pc (StarDeriverTest's solar twin): no M-dwarf relation, R from L and Stefan-Boltzmann, M from L
+        StarResult sun = deriver.derive(StarDeriverTest.solarTwinAt10pc(), new StarResult());
+        assertEquals(0.0, sun.radiusMksWeight, "the Sun's radius route");
+        assertEquals(0.0, sun.massMksWeight, "the Sun's mass route");
+        // without a parallax there is no radius and no mass, hence no route
+        StarInput noPlx = StarDeriverTest.solarTwinAt10pc();
+        noPlx.hasParallax = noPlx.hasParallaxErr = false;
+        StarResult none = deriver.derive(noPlx, new StarResult());
+        assertTrue(Double.isNaN(none.radiusMksWeight) && Double.isNaN(none.massMksWeight), "no route without a distance");
+    }
+
+    @Test
     void barnardsStarMatchesItsInterferometricRadiusAndTemperature() {
         StarResult r = deriver.derive(barnardsStar(), new StarResult());
         // interferometric R = 0.1867 +- 0.0012 R_sun, Teff = 3222 +- 10 K (Boyajian et al. 2012, ApJ 757, 112; from memory)
