@@ -209,7 +209,7 @@ class CheckCommandTest {
         assertFalse(Files.exists(out));
         // badCommandLineValues
         sameRefusal(2, out, List.of("--write-mode", "sometimes"), demoArgs(astrometry(), photometry(), out, "--write-mode", "sometimes"));
-        sameRefusal(2, out, List.of("--input-format", "fits"), demoArgs(astrometry(), photometry(), out, "--input-format", "fits"));
+        sameRefusal(2, out, List.of("--input-format", "hdf5"), demoArgs(astrometry(), photometry(), out, "--input-format", "hdf5"));
         Path tile0 = dataFiles(astrometry()).get(0).getParent();
         Path ptile0 = dataFiles(photometry()).get(0).getParent();
         sameRefusal(2, out, List.of("replace-partitions"), demoArgs(tile0, ptile0, out, "--write-mode", "replace-partitions"));
