@@ -126,6 +126,7 @@ public final class Main implements Runnable {
             }
             return Sessions.withSession(spark.options(), "derive", (session, progress) -> {
                 DeriveJob.Summary s = DeriveJob.run(session, req, cfg, progress);
+                progress.finish();
                 PrintWriter out = spec.commandLine().getOut();
                 out.print(s.render());
                 out.flush();
@@ -190,6 +191,7 @@ public final class Main implements Runnable {
                 long t0 = System.nanoTime();
                 progress.step("select_and_write");
                 CatalogExport.Result r = CatalogExport.run(session, req);
+                progress.finish();
                 PrintWriter w = spec.commandLine().getOut();
                 w.printf("starderive export: %,d rows, %d columns, %s, %,d bytes, %.1f s%n", r.rows, r.columns,
                         req.format.name().toLowerCase(java.util.Locale.ROOT), r.bytes, (System.nanoTime() - t0) / 1e9);
@@ -263,6 +265,7 @@ public final class Main implements Runnable {
                 } else {
                     org.starderive.sample.SampleSurvey.write(session, stars, seed, out, p, mode);
                 }
+                progress.finish();
                 double sec = (System.nanoTime() - t0) / 1e9;
                 PrintWriter w = spec.commandLine().getOut();
                 w.printf("starderive sample: %,d stars (seed %d) in %.1f s (%,.0f stars/s)%n", stars, seed, sec, stars / sec);
@@ -302,6 +305,7 @@ public final class Main implements Runnable {
                 progress.step("compute_and_write");
                 org.starderive.report.QaReport.Result r = writingReport(out,
                         () -> org.starderive.report.QaReport.run(session, catalog, out));
+                progress.finish();
                 PrintWriter w = spec.commandLine().getOut();
                 w.printf("starderive report: %,d rows, %,d in the HR diagram, %.1f s%n", r.rows, r.hrStars,
                         (System.nanoTime() - t0) / 1e9);
@@ -337,6 +341,7 @@ public final class Main implements Runnable {
                 progress.step("compute_and_write");
                 org.starderive.report.RecoveryReport.Result r = writingReport(out,
                         () -> org.starderive.report.RecoveryReport.run(session, derived, truth, out));
+                progress.finish();
                 PrintWriter w = spec.commandLine().getOut();
                 w.printf("starderive recovery: %,d stars%n", r.stars);
                 r.clean.forEach((q, s) -> w.printf("  %-7s n=%d bias %+.2f%% scatter %.2f%% coverage %.3f%n", q, s.n,
@@ -382,6 +387,7 @@ public final class Main implements Runnable {
                     w = w.partitionBy(partitionBy.toArray(new String[0]));
                 }
                 w.parquet(output);
+                progress.finish();
                 PrintWriter o = spec.commandLine().getOut();
                 o.printf("starderive rewrite: %.1f s%n", (System.nanoTime() - t0) / 1e9);
                 o.flush();

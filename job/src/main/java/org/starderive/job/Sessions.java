@@ -47,8 +47,28 @@ public final class Sessions {
     }
 
     /**
-     * Runs {@code work} of sub-command {@code command} with a session and a progress display. The display is finished
-     * when the work returns, and reported stopped (then closed) when it throws, so that the error printed after it
+     * Whether standard input and output are a terminal. On Java 17 that is what {@code System.console() != null}
+     * means; from Java 22 on a console may exist with the streams redirected, and {@code Console.isTerminal()}
+     * (looked up by name, as it is not in Java 17) tells.
+     */
+    static boolean interactive() {
+        java.io.Console c = System.console();
+        if (c == null) {
+            return false;
+        }
+        try {
+            return (Boolean) java.io.Console.class.getMethod("isTerminal").invoke(c);
+        } catch (NoSuchMethodException e) {
+            return true;
+        } catch (ReflectiveOperationException | RuntimeException e) {
+            return false;
+        }
+    }
+
+    /**
+     * Runs {@code work} of sub-command {@code command} with a session and a progress display. The work finishes the
+     * display before it prints its summary (so that the summary does not share a line with it); it is finished here
+     * at the latest, and reported stopped (then closed) when the work throws, so that the error printed after it
      * stands on a line of its own.
      */
     public static int withSession(Options opts, String command, Work work) {
@@ -69,7 +89,7 @@ public final class Sessions {
             sessionConf(opts.verbose).forEach(b::config);
             spark = b.getOrCreate();
         }
-        ProgressReporter.Mode mode = ProgressReporter.chooseMode(opts.noProgress, opts.verbose, System.console() != null,
+        ProgressReporter.Mode mode = ProgressReporter.chooseMode(opts.noProgress, opts.verbose, interactive(),
                 System.getenv("TERM"));
         try {
             try (ProgressReporter progress = ProgressListener.open(spark.sparkContext(), command, mode)) {
