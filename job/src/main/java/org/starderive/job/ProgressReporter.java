@@ -14,8 +14,9 @@ import java.util.function.IntConsumer;
 import java.util.function.LongSupplier;
 
 /**
- * The one progress display of a run: the current step, tasks done / total of the Spark stages the step started, rows
- * read and written where the task metrics know them, and the elapsed time. No Spark import: {@link ProgressListener}
+ * The one progress display of a run: the current step, tasks done / total of the Spark stages the step started,
+ * records read and written as the successful tasks' metrics count them (rows, for a run's tables; a cached RDD counts
+ * its elements), and the elapsed time. No Spark import: {@link ProgressListener}
  * feeds it Spark's events, tests feed it synthetic ones.
  *
  * <p>Two ways to show it (chosen by {@link #chooseMode}):
@@ -68,8 +69,8 @@ public final class ProgressReporter implements AutoCloseable {
         final long startNanos;
         final AtomicLong tasksTotal = new AtomicLong();
         final AtomicLong tasksDone = new AtomicLong();
-        final AtomicLong rowsRead = new AtomicLong();
-        final AtomicLong rowsWritten = new AtomicLong();
+        final AtomicLong recordsRead = new AtomicLong();
+        final AtomicLong recordsWritten = new AtomicLong();
         final AtomicInteger openStages = new AtomicInteger();
 
         Step(int index, String name, long startNanos) {
@@ -194,8 +195,8 @@ public final class ProgressReporter implements AutoCloseable {
         Step s = stages.get(stageKey);
         if (s != null && success) {
             s.tasksDone.incrementAndGet();
-            s.rowsRead.addAndGet(Math.max(0, recordsRead));
-            s.rowsWritten.addAndGet(Math.max(0, recordsWritten));
+            s.recordsRead.addAndGet(Math.max(0, recordsRead));
+            s.recordsWritten.addAndGet(Math.max(0, recordsWritten));
         }
     }
 
@@ -339,7 +340,7 @@ public final class ProgressReporter implements AutoCloseable {
         return "[" + command + " " + clock(now - startNanos) + "] ";
     }
 
-    /** Tasks done / total, rows read, rows written: the parts that are known, comma separated. */
+    /** Tasks done / total, records read, records written: the parts that are known, comma separated. */
     static String counts(Step s, boolean end) {
         List<String> parts = new ArrayList<>();
         long total = s.tasksTotal.get();
@@ -348,11 +349,11 @@ public final class ProgressReporter implements AutoCloseable {
             parts.add(end && done == total ? String.format(Locale.ROOT, "%,d tasks", done)
                     : String.format(Locale.ROOT, "%,d/%,d tasks", done, total));
         }
-        if (s.rowsRead.get() > 0) {
-            parts.add(String.format(Locale.ROOT, "%,d rows read", s.rowsRead.get()));
+        if (s.recordsRead.get() > 0) {
+            parts.add(String.format(Locale.ROOT, "%,d records read", s.recordsRead.get()));
         }
-        if (s.rowsWritten.get() > 0) {
-            parts.add(String.format(Locale.ROOT, "%,d rows written", s.rowsWritten.get()));
+        if (s.recordsWritten.get() > 0) {
+            parts.add(String.format(Locale.ROOT, "%,d records written", s.recordsWritten.get()));
         }
         return String.join(", ", parts);
     }

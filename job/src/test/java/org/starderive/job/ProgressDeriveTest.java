@@ -130,7 +130,7 @@ class ProgressDeriveTest {
         // the write's tasks wrote every input row (20 rows in, row conservation: README)
         String writeEnd = lines.stream().filter(l -> l[0].equals("derive_and_write") && l[1].equals("done in"))
                 .findFirst().orElseThrow()[2];
-        assertTrue(writeEnd.contains(" tasks") && writeEnd.contains("20 rows written"), writeEnd);
+        assertTrue(writeEnd.contains(" tasks") && writeEnd.contains("20 records written"), writeEnd);
         assertTrue(r.out.startsWith("starderive derive: 20 rows in, 20 rows out"), "the summary alone on stdout: " + r.out);
         assertFalse(r.out.contains("started") || r.out.contains("\r"), r.out);
         assertNoSparkNoise(r, events);

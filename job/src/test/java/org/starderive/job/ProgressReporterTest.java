@@ -64,7 +64,7 @@ class ProgressReporterTest {
         return out;
     }
 
-    /** One stage of 4 tasks for the current step, 3 of them ending successfully with 250 rows read each. */
+    /** One stage of 4 tasks for the current step, 3 of them ending successfully with 250 records read each. */
     private void stageWithTasks(ProgressReporter r, int step, long stageKey) {
         r.stageSubmitted(r.tag(step), stageKey, 4);
         for (int i = 0; i < 3; i++) {
@@ -88,7 +88,7 @@ class ProgressReporterTest {
                 "[derive 0:00] open_inputs started",
                 "[derive 0:01] open_inputs done in 1.2 s",
                 "[derive 0:01] derive_and_write started",
-                "[derive 0:03] derive_and_write done in 2.5 s (4 tasks, 1,000 rows read, 1,000 rows written)",
+                "[derive 0:03] derive_and_write done in 2.5 s (4 tasks, 1,000 records read, 1,000 records written)",
                 ""), List.of(text().split("\n", -1)));
         assertEquals(List.of(0, 1), stepsTold, "each step tagged for the listener, in order");
     }
@@ -106,10 +106,10 @@ class ProgressReporterTest {
         List<String> lines = List.of(text().split("\n"));
         List<String> running = lines.stream().filter(l -> l.contains(" running for ")).collect(java.util.stream.Collectors.toList());
         assertEquals(List.of(
-                "[derive 0:30] derive_and_write running for 30 s: 3/4 tasks, 750 rows read",
-                "[derive 1:00] derive_and_write running for 60 s: 3/4 tasks, 750 rows read",
-                "[derive 1:30] derive_and_write running for 90 s: 3/4 tasks, 750 rows read"), running);
-        assertEquals("[derive 1:35] derive_and_write done in 95.0 s (3/4 tasks, 750 rows read)", lines.get(lines.size() - 1),
+                "[derive 0:30] derive_and_write running for 30 s: 3/4 tasks, 750 records read",
+                "[derive 1:00] derive_and_write running for 60 s: 3/4 tasks, 750 records read",
+                "[derive 1:30] derive_and_write running for 90 s: 3/4 tasks, 750 records read"), running);
+        assertEquals("[derive 1:35] derive_and_write done in 95.0 s (3/4 tasks, 750 records read)", lines.get(lines.size() - 1),
                 "a step that ends with tasks missing says so");
         assertFalse(text().contains("\r"), "no carriage return in a log");
     }
@@ -130,7 +130,7 @@ class ProgressReporterTest {
         assertNull(r.stepOf(other.tag(0)));
         assertNull(r.stepOf(r.tag(7)), "no such step");
         r.finish();
-        assertTrue(text().contains("scan_ids done in 0.0 s (2 tasks, 20 rows read)"), text());
+        assertTrue(text().contains("scan_ids done in 0.0 s (2 tasks, 20 records read)"), text());
     }
 
     @Test
@@ -153,7 +153,7 @@ class ProgressReporterTest {
         assertFalse(text().contains("\n"), "one line, never a new one: " + text());
         List<String> shown = screen();
         assertEquals(1, shown.size(), shown.toString());
-        assertEquals("[derive 0:03] scan_ids 2 s, 3/4 tasks, 750 rows read", shown.get(0));
+        assertEquals("[derive 0:03] scan_ids 2 s, 3/4 tasks, 750 records read", shown.get(0));
         assertTrue(text().endsWith("\r"), "the cursor waits at the start of the line, so a warning printed now "
                 + "starts at the left edge");
         r.finish();
