@@ -189,8 +189,7 @@ public final class Main implements Runnable {
             req.overwrite = overwrite;
             return Sessions.withSession(spark.options(), "export", (session, progress) -> {
                 long t0 = System.nanoTime();
-                progress.step("select_and_write");
-                CatalogExport.Result r = CatalogExport.run(session, req);
+                CatalogExport.Result r = CatalogExport.run(session, req, progress);
                 progress.finish();
                 PrintWriter w = spec.commandLine().getOut();
                 w.printf("starderive export: %,d rows, %d columns, %s, %,d bytes, %.1f s%n", r.rows, r.columns,
