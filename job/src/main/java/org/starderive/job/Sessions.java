@@ -19,6 +19,8 @@ public final class Sessions {
 
     /** Spark's console stage bars; off unless --verbose (our own display shows the run's progress). */
     static final String SHOW_CONSOLE_PROGRESS = "spark.ui.showConsoleProgress";
+    /** Time zone of Spark SQL timestamps: UTC whatever the machine's zone, so that runs agree across hosts. */
+    static final String SESSION_TIME_ZONE = "spark.sql.session.timeZone";
 
     /** Work to do with a session and the run's progress display. */
     public interface Work {
@@ -42,7 +44,7 @@ public final class Sessions {
     static Map<String, String> sessionConf(boolean verbose) {
         Map<String, String> c = new LinkedHashMap<>();
         c.put(SHOW_CONSOLE_PROGRESS, Boolean.toString(verbose));
-        c.put("spark.sql.session.timeZone", "UTC");
+        c.put(SESSION_TIME_ZONE, "UTC");
         return c;
     }
 
@@ -78,7 +80,7 @@ public final class Sessions {
             // a session of the JVM's (tests, notebooks): its static settings cannot change (Spark warns if asked to),
             // only the runtime SQL ones are set
             spark = SparkSession.active();
-            spark.conf().set("spark.sql.session.timeZone", "UTC");
+            spark.conf().set(SESSION_TIME_ZONE, sessionConf(opts.verbose).get(SESSION_TIME_ZONE));
         } else {
             SparkSession.Builder b = SparkSession.builder().appName("starderive " + command);
             if (opts.master != null) {
