@@ -154,7 +154,13 @@ public final class CatalogExport {
     }
 
     public static Result run(SparkSession spark, Request req) {
+        return run(spark, req, ProgressReporter.off());
+    }
+
+    /** Runs the export, telling {@code progress} when each of its four steps starts. */
+    public static Result run(SparkSession spark, Request req, ProgressReporter progress) {
         // 1. the output: a local file whose folder exists; refused now if it exists and --overwrite is not given
+        progress.step("check_output");
         Path out = req.out.toAbsolutePath().normalize();
         Path dir = out.getParent();
         if (dir == null || !Files.isDirectory(dir)) {
@@ -176,6 +182,7 @@ public final class CatalogExport {
         }
 
         // 2. the catalogue: complete (manifest present), readable
+        progress.step("open_catalog");
         JsonNode manifest = readManifest(spark, req.catalog);
         Dataset<Row> cat;
         try {
@@ -185,6 +192,7 @@ public final class CatalogExport {
         }
 
         // 3. the selection
+        progress.step("count_selection");
         List<String> cols = selectColumns(cat.schema(), manifest, req);
         Dataset<Row> sel = cat;
         if (req.excludeFlags != 0) {
@@ -213,6 +221,7 @@ public final class CatalogExport {
         }
 
         // 4. the table, then the file
+        progress.step("collect_and_write");
         StructType schema = sel.schema();
         StarTable table = toStarTable(sel, schema, rows);
         addProvenance(table, manifest, req);

@@ -153,6 +153,14 @@ public final class DeriveJob {
     private DeriveJob() {}
 
     public static Summary run(SparkSession spark, Request req, JobConfig config) {
+        return run(spark, req, config, ProgressReporter.off());
+    }
+
+    /**
+     * Runs the job, telling {@code progress} when each step starts: the steps are those timed in the manifest's
+     * {@code seconds} ({@code take_lease} is part of {@code check_output}), then {@code commit}.
+     */
+    public static Summary run(SparkSession spark, Request req, JobConfig config, ProgressReporter progress) {
         long t0 = System.nanoTime();
         Map<String, Double> seconds = new LinkedHashMap<>();
         String runId = Instant.now().toString().replaceAll("[^0-9]", "").substring(0, 14) + "-" + UUID.randomUUID().toString().substring(0, 8);
@@ -160,12 +168,13 @@ public final class DeriveJob {
         Configuration hconf = spark.sparkContext().hadoopConfiguration();
         OutputCommitter committer = new OutputCommitter(hconf, req.output, runId, req.writeMode);
         try {
+            progress.step("check_output");
             committer.prepare(req.allInputs(), hconf, config.leaseStaleAfterS());
             seconds.put("take_lease", committer.leaseSeconds());
             seconds.put("check_output", (System.nanoTime() - t0) / 1e9);
             // the run's Spark jobs in one group, so that after a failure their last tasks can be waited for
             spark.sparkContext().setJobGroup("starderive-" + runId, "starderive derive " + runId, true);
-            return runHoldingLease(spark, req, config, committer, runId, t0, seconds);
+            return runHoldingLease(spark, req, config, committer, runId, t0, seconds, progress);
         } finally {
             spark.sparkContext().clearJobGroup();
             committer.release();
@@ -209,9 +218,11 @@ public final class DeriveJob {
     }
 
     private static Summary runHoldingLease(SparkSession spark, Request req, JobConfig config, OutputCommitter committer,
-                                           String runId, long t0, Map<String, Double> seconds) {
+                                           String runId, long t0, Map<String, Double> seconds,
+                                           ProgressReporter progress) {
         Configuration hconf = spark.sparkContext().hadoopConfiguration();
 
+        progress.step("open_inputs");
         Inputs inputs = openInputs(spark, req, config);
         seconds.put("open_inputs", (System.nanoTime() - t0) / 1e9);
         String idColumn = inputs.idColumn;
@@ -227,14 +238,17 @@ public final class DeriveJob {
         facts.put("run_id", runId);
         facts.put("started_utc", Instant.now().toString());
         if (twoTables) {
+            progress.step("check_inputs");
             joined = pipeline.join(astro, phot);
             expected = RowCensus.expectedJoin(astro.data(), phot.data(), idColumn);
             facts.put("join_policy", "full outer join on " + idColumn + ", copy by copy: max(k, j) rows for an id held k and j times;"
                     + " a null, empty or blank id matches nothing (one row each, ID_MISSING)");
         } else {
+            progress.step("scan_ids");
             long ts = System.nanoTime();
             DerivePipeline.IdScan scan = pipeline.scanIds(astro.data(), inputs.tableName());
             seconds.put("scan_ids", (System.nanoTime() - ts) / 1e9);
+            progress.step("check_inputs");
             joined = pipeline.markDuplicates(astro.data(), scan);
             expected = scan.census;
         }
@@ -244,6 +258,7 @@ public final class DeriveJob {
         DataType idType = derived.schema().apply(idColumn).dataType();
         seconds.put("check_inputs", (System.nanoTime() - t0) / 1e9);
 
+        progress.step("derive_and_write");
         long t1 = System.nanoTime();
         String staging = committer.staging().toString();
         try {
@@ -260,6 +275,7 @@ public final class DeriveJob {
             }
             seconds.put("derive_and_write", (System.nanoTime() - t1) / 1e9);
 
+            progress.step("verify_rows");
             long t2 = System.nanoTime();
             Dataset<Row> back = req.outputFormat.equals("csv")
                     ? spark.read().option("header", "true").option("inferSchema", "false").csv(staging)
@@ -299,12 +315,14 @@ public final class DeriveJob {
             facts.put("finished_utc", Instant.now().toString());
             // the inputs must still be the files the run read; checked last, just before the manifest and the commit
             TestHooks.runBeforeInputRecheck();
+            progress.step("recheck_inputs");
             long t3 = System.nanoTime();
             for (InputTable t : twoTables ? List.of(astro, phot) : List.of(astro)) {
                 t.recheck(hconf);
             }
             seconds.put("recheck_inputs", (System.nanoTime() - t3) / 1e9);
             seconds.put("total_before_commit", (System.nanoTime() - t0) / 1e9);
+            progress.step("commit");
             facts.put("history", history(req, committer, facts, partitionColumns, s.rowsOut));
             committer.writeText(DataDictionary.FILE_NAME, DataDictionary.render(derived.schema(), idColumn));
             committer.writeText(RunManifest.FILE_NAME, RunManifest.render(req, config, facts, s.rowsPerFlag, seconds));

@@ -145,8 +145,9 @@ public final class Main implements Runnable {
         public Integer call() {
             DeriveJob.Request req = options.request();
             JobConfig cfg = options.jobConfig();
-            return Sessions.withSession(spark.master, "starderive derive", session -> {
-                DeriveJob.Summary s = DeriveJob.run(session, req, cfg);
+            return Sessions.withSession(spark.options(), "derive", (session, progress) -> {
+                DeriveJob.Summary s = DeriveJob.run(session, req, cfg, progress);
+                progress.finish();
                 PrintWriter out = spec.commandLine().getOut();
                 out.print(s.render());
                 out.flush();
@@ -187,8 +188,10 @@ public final class Main implements Runnable {
             }
             DeriveJob.Request req = options.request();
             JobConfig cfg = options.jobConfig();
-            return Sessions.withSession(spark.master, "starderive check", session -> {
+            return Sessions.withSession(spark.options(), "check", (session, progress) -> {
+                progress.step("read_schemas_and_sample");
                 DeriveCheck.Report r = DeriveCheck.run(session, req, cfg, sampleRows);
+                progress.finish();
                 PrintWriter out = spec.commandLine().getOut();
                 out.print(json ? r.json() : r.render());
                 out.flush();
@@ -249,9 +252,10 @@ public final class Main implements Runnable {
             req.limit = limit;
             req.maxRows = maxRows;
             req.overwrite = overwrite;
-            return Sessions.withSession(spark.master, "starderive export", session -> {
+            return Sessions.withSession(spark.options(), "export", (session, progress) -> {
                 long t0 = System.nanoTime();
-                CatalogExport.Result r = CatalogExport.run(session, req);
+                CatalogExport.Result r = CatalogExport.run(session, req, progress);
+                progress.finish();
                 PrintWriter w = spec.commandLine().getOut();
                 w.printf("starderive export: %,d rows, %d columns, %s, %,d bytes, %.1f s%n", r.rows, r.columns,
                         req.format.name().toLowerCase(java.util.Locale.ROOT), r.bytes, (System.nanoTime() - t0) / 1e9);
@@ -301,8 +305,9 @@ public final class Main implements Runnable {
             if (p < 1) {
                 throw JobException.config("Invalid --partitions: " + p + " (must be >= 1)");
             }
-            return Sessions.withSession(spark.master, "starderive sample", session -> {
+            return Sessions.withSession(spark.options(), "sample", (session, progress) -> {
                 long t0 = System.nanoTime();
+                progress.step("check_output");
                 if (!overwrite) {
                     for (String t : singleTable ? List.of("stars", "truth") : List.of("astrometry", "photometry", "truth")) {
                         try {
@@ -316,6 +321,7 @@ public final class Main implements Runnable {
                         }
                     }
                 }
+                progress.step("generate_and_write");
                 org.apache.spark.sql.SaveMode mode = overwrite ? org.apache.spark.sql.SaveMode.Overwrite
                         : org.apache.spark.sql.SaveMode.ErrorIfExists;
                 if (singleTable) {
@@ -323,6 +329,7 @@ public final class Main implements Runnable {
                 } else {
                     org.starderive.sample.SampleSurvey.write(session, stars, seed, out, p, mode);
                 }
+                progress.finish();
                 double sec = (System.nanoTime() - t0) / 1e9;
                 PrintWriter w = spec.commandLine().getOut();
                 w.printf("starderive sample: %,d stars (seed %d) in %.1f s (%,.0f stars/s)%n", stars, seed, sec, stars / sec);
@@ -357,10 +364,12 @@ public final class Main implements Runnable {
 
         @Override
         public Integer call() {
-            return Sessions.withSession(spark.master, "starderive report", session -> {
+            return Sessions.withSession(spark.options(), "report", (session, progress) -> {
                 long t0 = System.nanoTime();
+                progress.step("compute_and_write");
                 org.starderive.report.QaReport.Result r = writingReport(out,
                         () -> org.starderive.report.QaReport.run(session, catalog, out));
+                progress.finish();
                 PrintWriter w = spec.commandLine().getOut();
                 w.printf("starderive report: %,d rows, %,d in the HR diagram, %.1f s%n", r.rows, r.hrStars,
                         (System.nanoTime() - t0) / 1e9);
@@ -392,9 +401,11 @@ public final class Main implements Runnable {
 
         @Override
         public Integer call() {
-            return Sessions.withSession(spark.master, "starderive recovery", session -> {
+            return Sessions.withSession(spark.options(), "recovery", (session, progress) -> {
+                progress.step("compute_and_write");
                 org.starderive.report.RecoveryReport.Result r = writingReport(out,
                         () -> org.starderive.report.RecoveryReport.run(session, derived, truth, out));
+                progress.finish();
                 PrintWriter w = spec.commandLine().getOut();
                 w.printf("starderive recovery: %,d stars%n", r.stars);
                 r.clean.forEach((q, s) -> w.printf("  %-7s n=%d bias %+.2f%% scatter %.2f%% coverage %.3f%n", q, s.n,
@@ -430,8 +441,9 @@ public final class Main implements Runnable {
 
         @Override
         public Integer call() {
-            return Sessions.withSession(spark.master, "starderive rewrite", session -> {
+            return Sessions.withSession(spark.options(), "rewrite", (session, progress) -> {
                 long t0 = System.nanoTime();
+                progress.step("rewrite");
                 org.apache.spark.sql.Dataset<org.apache.spark.sql.Row> in = session.read().parquet(input);
                 org.apache.spark.sql.DataFrameWriter<org.apache.spark.sql.Row> w = ParquetWriteOptions.apply(
                         in.write().mode(org.apache.spark.sql.SaveMode.ErrorIfExists), in.schema(), compression);
@@ -439,6 +451,7 @@ public final class Main implements Runnable {
                     w = w.partitionBy(partitionBy.toArray(new String[0]));
                 }
                 w.parquet(output);
+                progress.finish();
                 PrintWriter o = spec.commandLine().getOut();
                 o.printf("starderive rewrite: %.1f s%n", (System.nanoTime() - t0) / 1e9);
                 o.flush();
@@ -461,21 +474,33 @@ public final class Main implements Runnable {
         }
     }
 
-    /** --master as a mixin so that every Spark sub-command has it. */
+    /** --master, --verbose and --no-progress as a mixin so that every Spark sub-command has them. */
     public static class SparkOptionsMixin {
         @Option(names = "--master", paramLabel = "URL",
                 description = "Spark master, e.g. local[4] or spark://host:7077. Default: the one spark-submit sets, "
                         + "otherwise local[*].")
         String master;
 
+        boolean verbose;
+
+        @Option(names = "--no-progress",
+                description = "No progress display (by default: one line updated in place on a terminal, otherwise a "
+                        + "line when each step starts and ends).")
+        boolean noProgress;
+
         @Option(names = "--verbose",
-                description = "Spark's and Hadoop's own log lines too (by default only starderive's lines and warnings a user "
-                        + "can act on are shown).")
+                description = "Spark's and Hadoop's own log lines and Spark's stage progress bars too (by default only "
+                        + "starderive's lines, its progress display and warnings a user can act on are shown).")
         void setVerbose(boolean verbose) {
+            this.verbose = verbose;
             if (verbose) {
                 org.apache.logging.log4j.core.config.Configurator.setAllLevels(
                         org.apache.logging.log4j.LogManager.ROOT_LOGGER_NAME, org.apache.logging.log4j.Level.INFO);
             }
+        }
+
+        Sessions.Options options() {
+            return new Sessions.Options(master, verbose, noProgress);
         }
     }
 

@@ -444,6 +444,9 @@ class ExportTest {
         assertEquals(2, r.exitCode, r.toString());
         assertTrue(r.err.contains("60 rows, more than --max-rows 10"), r.err);
         assertFalse(r.err.contains("\tat "), "no stack trace: " + r.err);
+        // the progress display names the step that refused, then the refusal follows on a line of its own
+        assertTrue(r.err.matches("(?s).*\\[export [0-9:]+\\] check_output started\n.*\\] open_catalog started\n.*"
+                + "\\] count_selection stopped after [^\n]*\nstarderive: Selection .*"), r.err);
         assertFalse(Files.exists(big));
 
         // an unknown column: exit 2 naming it

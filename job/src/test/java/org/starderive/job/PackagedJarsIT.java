@@ -77,6 +77,8 @@ class PackagedJarsIT {
         assertEquals(0, a, la);
         assertTrue(la.contains("40 rows in, 40 rows out"), la);
         assertTrue(!la.contains(" INFO SparkContext"), "quiet by default: " + la);
+        assertTrue(!la.contains("[Stage "), "no Spark stage bar (spark.ui.showConsoleProgress off): " + la);
+        assertTrue(la.contains("] derive_and_write done in "), "the run's own progress lines instead: " + la);
 
         Path outSubmit = tmp.resolve("out-submit");
         Path logSubmit = tmp.resolve("submit.log");
@@ -90,6 +92,9 @@ class PackagedJarsIT {
         String lb = Files.readString(logSubmit, StandardCharsets.UTF_8);
         assertEquals(0, b, lb);
         assertTrue(lb.contains("40 rows in, 40 rows out"), lb);
+        // under spark-submit the session is built by the job too, with the same settings
+        assertTrue(!lb.contains("[Stage "), "no Spark stage bar under spark-submit: " + lb);
+        assertTrue(lb.contains("] derive_and_write done in "), "the run's own progress lines: " + lb);
 
         List<Row> x = spark.read().parquet(outLocal.toString()).drop("flag_names").orderBy("star_id").collectAsList();
         List<Row> y = spark.read().parquet(outSubmit.toString()).drop("flag_names").orderBy("star_id").collectAsList();

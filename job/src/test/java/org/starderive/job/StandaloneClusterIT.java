@@ -140,6 +140,10 @@ class StandaloneClusterIT {
             assertTrue(submit.waitFor(8, TimeUnit.MINUTES), "submit finished");
             assertEquals(0, submit.exitValue(), Files.readString(slog));
             assertEqualCatalogues(spark, local, clean);
+            // under spark-submit the session is built by the job too: its progress lines, no Spark stage bar
+            String submitted = Files.readString(slog);
+            assertTrue(submitted.contains("] derive_and_write done in "), "progress lines in the driver's log: " + submitted);
+            assertTrue(!submitted.contains("[Stage "), "no Spark stage bar in the driver's log: " + submitted);
 
             // 2. the same job, losing a Worker (and its executor) while it runs
             Path lost = tmp.resolve("out-lost-worker");
