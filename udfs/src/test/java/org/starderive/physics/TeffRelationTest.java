@@ -137,6 +137,11 @@ class TeffRelationTest {
         assertEquals(0.0, TeffRelations.byId("M15/V-J+JH").dTeffDFeh(3.0, 0.1, 4.8), 0.0);
         // the [Fe/H] form: f = 0.05262 (M15 Table 2, V-J with [Fe/H]) times 3500 K
         assertEquals(3500 * 0.05262, TeffRelations.byId("M15/V-J+FeH").dTeffDFeh(3.0, 0.1, 4.8), 1e-9);
+        // the slope at a known Teff is the plain slope for the polynomial forms (C10 Table 4, M15 Table 2)
+        TeffRelation vk = TeffRelations.byId("C10/V-Ks");
+        assertEquals(vk.dTeffDColour(1.6, -0.4, 4.4), vk.dTeffDColourAt(1.6, -0.4, 4.4, Double.NaN, 5000.0), 0.0);
+        TeffRelation vj = TeffRelations.byId("M15/V-J");
+        assertEquals(vj.dTeffDColour(3.5, 0, 4.8), vj.dTeffDColourAt(3.5, 0, 4.8, Double.NaN, 3300.0), 0.0);
         // a J-H form evaluated without J-H has no temperature
         assertTrue(Double.isNaN(TeffRelations.byId("M15/V-J+JH").teff(3.0, 0.0, 4.8)));
     }
