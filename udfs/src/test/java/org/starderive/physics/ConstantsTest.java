@@ -61,6 +61,7 @@ class ConstantsTest {
         assertEquals("m", c.unit());
         assertEquals("au = 1.495978707E11 m (IAU 2012 Resolution B2)", c.toString());
         // CODATA 2018: G = 6.67430(15)e-11
+        assertEquals(1.5e-15, Constant.of("G", 6.67430e-11, 1.5e-15, "m3 kg-1 s-2", "CODATA 2018").uncertainty(), 0.0);
         assertEquals("G = 6.6743E-11 ± 1.5E-15 m3 kg-1 s-2 (CODATA 2018)",
                 Constant.of("G", 6.67430e-11, 1.5e-15, "m3 kg-1 s-2", "CODATA 2018").toString());
     }

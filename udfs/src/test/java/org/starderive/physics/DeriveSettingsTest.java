@@ -174,4 +174,32 @@ class DeriveSettingsTest {
         // beyond 24 degrees of freedom the 24-dof threshold is used (the class's cap)
         assertEquals(p05.teffDisagreeChi2(24), p05.teffDisagreeChi2(30), 0.0);
     }
+
+    @Test
+    void defaultsAreTheDocumentedDefaults() {
+        // the _DEFAULT constants are the documented defaults (README configuration table); the builder starts there
+        DeriveSettings d = DeriveSettings.defaults();
+        assertEquals(DeriveSettings.PARALLAX_ZERO_POINT_MAS_DEFAULT, d.parallaxZeroPointMas(), 0.0);
+        assertEquals(DeriveSettings.PARALLAX_SNR_MIN_DEFAULT, d.parallaxSnrMin(), 0.0);
+        assertEquals(DeriveSettings.DISTANCE_SNR_MIN_DEFAULT, d.distanceSnrMin(), 0.0);
+        assertEquals(DeriveSettings.PARALLAX_MAX_MAS_DEFAULT, d.parallaxMaxMas(), 0.0);
+        assertEquals(DeriveSettings.DISTANCE_METHOD_DEFAULT, d.distanceMethod());
+        assertEquals(DeriveSettings.PRIOR_LENGTH_KPC_DEFAULT, d.priorLengthKpc(), 0.0);
+        assertEquals(DeriveSettings.POSTERIOR_PERCENTILES_DEFAULT, d.posteriorPercentiles());
+        assertEquals(DeriveSettings.RV_DEFAULT, d.rv(), 0.0);
+        assertEquals(DeriveSettings.EBV_DEFAULT, d.ebvDefault(), 0.0);
+        assertEquals(DeriveSettings.EBV_ERR_DEFAULT, d.ebvErrDefault(), 0.0);
+        assertEquals(DeriveSettings.FEH_DEFAULT, d.fehDefault(), 0.0);
+        assertEquals(DeriveSettings.FEH_ERR_DEFAULT, d.fehErrDefault(), 0.0);
+        assertEquals(DeriveSettings.ALLOW_EXTRAPOLATION_DEFAULT, d.allowExtrapolation());
+        assertEquals(DeriveSettings.TEFF_DISAGREE_P_DEFAULT, d.teffDisagreeP(), 0.0);
+        assertEquals(DeriveSettings.DIAMETER_DISAGREE_SIGMA_DEFAULT, d.diameterDisagreeSigma(), 0.0);
+        assertEquals(DeriveSettings.GIANT_LOGG_PRIOR_DEFAULT, d.giantLoggPrior(), 0.0);
+        assertEquals(DeriveSettings.GIANT_LOGG_PRIOR_ERR_DEFAULT, d.giantLoggPriorErr(), 0.0);
+        assertEquals(DeriveSettings.MAG_MIN_DEFAULT, d.magMin(), 0.0);
+        assertEquals(DeriveSettings.MAG_MAX_DEFAULT, d.magMax(), 0.0);
+        assertEquals(DeriveSettings.HOT_TEFF_ERR_FRAC_MAX_DEFAULT, d.hotTeffErrFracMax(), 0.0);
+        // R_V = 3.1, the diffuse-ISM value (Cardelli, Clayton & Mathis 1989)
+        assertEquals(3.1, d.rv(), 0.0);
+    }
 }

@@ -18,6 +18,12 @@ class StarRecordsTest {
         for (Band b : Band.values()) {
             in.magnitude(b, 10, 0.01);
         }
+        for (Band b : Band.values()) {
+            assertTrue(in.hasMag[b.ordinal()] && in.hasMagErr[b.ordinal()], b.name());
+        }
+        assertSame(in, in.magnitude(Band.V, 9.5, 0.02));
+        assertEquals(9.5, in.mag[Band.V.ordinal()], 0.0);
+        assertEquals(0.02, in.magErr[Band.V.ordinal()], 0.0);
         assertTrue(in.hasParallax && in.hasParallaxErr && in.hasEbv && in.hasEbvErr && in.hasFeh && in.hasFehErr);
         assertEquals(10, in.parallaxMas, 0.0);
         assertEquals(0.1, in.parallaxErrMas, 0.0);
@@ -54,6 +60,7 @@ class StarRecordsTest {
         r.angDiamMas = r.angDiamErrMas = r.angDiamSbrMas = 1;
         assertEquals("C10/B-V,C10/V-Rc", r.teffFrom());
         assertTrue(r.has(QualityFlag.PARALLAX_LOW_SNR) && r.has(QualityFlag.PARALLAX_MISSING));
+        assertFalse(r.has(QualityFlag.PARALLAX_NONPOSITIVE));
         assertSame(r, r.clear());
         assertEquals(0L, r.flags);
         assertEquals(StarResult.DistanceMethod.NONE, r.distMethod);
