@@ -28,6 +28,7 @@ class QualityFlagTest {
         assertEquals(List.of("PARALLAX_LOW_SNR", "V_FROM_G", "ID_MISSING"), QualityFlag.names(f));
         assertArrayEquals(new String[] {"PARALLAX_LOW_SNR", "V_FROM_G", "ID_MISSING"}, QualityFlag.nameArray(f));
         assertEquals(List.of(), QualityFlag.names(0L));
+        assertEquals(0, QualityFlag.nameArray(0L).length, "no flag, no name (the flag_names column is an empty array)");
         // bit 19 is unused: setting it names nothing
         assertEquals(List.of(), QualityFlag.names(1L << 19));
         assertTrue(QualityFlag.V_FROM_G.isSet(f));
