@@ -50,5 +50,19 @@ class ConstantsTest {
         assertThrows(IllegalArgumentException.class, () -> Constant.of("x", Double.NaN, 0, "m", "somewhere"));
         assertThrows(IllegalArgumentException.class, () -> Constant.of("x", 1, Double.NaN, "m", "somewhere"));
         assertEquals("derived from a and b", Constant.derived("y", 2, 0, "m", "a and b").reference());
+        assertThrows(IllegalArgumentException.class, () -> Constant.of("x", 1, -1e-12, "m", "somewhere"));
+        assertThrows(IllegalArgumentException.class, () -> Constant.of("x", 1, 0, "m", null));
+        assertThrows(IllegalArgumentException.class, () -> Constant.of("x", Double.POSITIVE_INFINITY, 0, "m", "somewhere"));
+        // an exact or nominal value has uncertainty 0, and it is accepted
+        Constant c = Constant.of("au", 149597870700.0, 0, "m", "IAU 2012 Resolution B2");
+        assertEquals("au", c.name());
+        assertEquals(149597870700.0, c.value(), 0.0);
+        assertEquals(0.0, c.uncertainty(), 0.0);
+        assertEquals("m", c.unit());
+        assertEquals("au = 1.495978707E11 m (IAU 2012 Resolution B2)", c.toString());
+        // CODATA 2018: G = 6.67430(15)e-11
+        assertEquals(1.5e-15, Constant.of("G", 6.67430e-11, 1.5e-15, "m3 kg-1 s-2", "CODATA 2018").uncertainty(), 0.0);
+        assertEquals("G = 6.6743E-11 ± 1.5E-15 m3 kg-1 s-2 (CODATA 2018)",
+                Constant.of("G", 6.67430e-11, 1.5e-15, "m3 kg-1 s-2", "CODATA 2018").toString());
     }
 }

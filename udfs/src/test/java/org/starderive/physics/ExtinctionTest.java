@@ -52,4 +52,24 @@ class ExtinctionTest {
         assertEquals(c - (GaiaBandExtinction.rBp(c0) - GaiaBandExtinction.rRp(c0)) * ebv, c0, 1e-4);
         assertEquals(c, GaiaBandExtinction.dereddenedBpRp(c, 0), 0);
     }
+
+    @Test
+    void gaiaCoefficientsFollowThePublishedPolynomialsAtNonZeroColour() {
+        // Casagrande et al. 2021 (authors' release): R_G = 2.609 - 0.475 C + 0.053 C^2,
+        // R_BP = 2.998 - 0.140 C - 0.175 C^2 + 0.062 C^3, R_RP = 1.689 - 0.059 C, typed here again
+        for (double c : new double[] {-0.3, 0.5, 0.82, 1.5, 2.5, 3.8}) {
+            double rg = 2.609 - 0.475 * c + 0.053 * c * c;
+            double rbp = 2.998 - 0.140 * c - 0.175 * c * c + 0.062 * c * c * c;
+            double rrp = 1.689 - 0.059 * c;
+            assertEquals(rg, GaiaBandExtinction.rG(c), 1e-12, "R_G at C=" + c);
+            assertEquals(rbp, GaiaBandExtinction.rBp(c), 1e-12, "R_BP at C=" + c);
+            assertEquals(rrp, GaiaBandExtinction.rRp(c), 1e-12, "R_RP at C=" + c);
+            assertEquals(rg, GaiaBandExtinction.r(Band.G, c), 1e-12);
+            assertEquals(rbp, GaiaBandExtinction.r(Band.BP, c), 1e-12);
+            assertEquals(rrp, GaiaBandExtinction.r(Band.RP, c), 1e-12);
+        }
+        IllegalArgumentException e = org.junit.jupiter.api.Assertions.assertThrows(IllegalArgumentException.class,
+                () -> GaiaBandExtinction.r(Band.V, 1.0));
+        assertTrue(e.getMessage().contains("must be G, BP or RP"), e.getMessage());
+    }
 }

@@ -94,6 +94,13 @@ class ParallaxDistanceTest {
             double ref = referenceModeKpc(w, s, L);
             assertEquals(ref, ParallaxDistance.edsdModeKpc(w, s, L), 1e-9 * ref, "w=" + w + " s=" + s);
         }
+        // length scales below 1 kpc (a thin-disc population, common practice): same cubic, same reference
+        for (double lengthKpc : new double[] {0.5, 0.25}) {
+            for (double[] c : new double[][] {{1, 0.5}, {0.2, 0.3}, {-1, 1}}) {
+                double ref = referenceModeKpc(c[0], c[1], lengthKpc);
+                assertEquals(ref, ParallaxDistance.edsdModeKpc(c[0], c[1], lengthKpc), 1e-9 * ref, "L=" + lengthKpc);
+            }
+        }
     }
 
     @Test
@@ -203,5 +210,107 @@ class ParallaxDistanceTest {
         assertTrue(Double.isNaN(q[0]));
         assertFalse(post.percentilesKpc(Double.NaN, 0.1, L, new double[] {0.5}, q));
         assertFalse(post.percentilesKpc(1, Double.POSITIVE_INFINITY, L, new double[] {0.5}, q));
+    }
+
+    @Test
+    void inverseParallaxOfASubMilliarcsecondParallax() {
+        // d[pc] = 1000 / parallax[mas] (definition of the parsec, IAU 2015 B2): 0.5 mas is 2 kpc, 0.25 mas 4 kpc
+        assertEquals(2000.0, ParallaxDistance.inverseParallaxPc(0.5), 1e-9);
+        assertEquals(4000.0, ParallaxDistance.inverseParallaxPc(0.25), 1e-9);
+    }
+
+    @Test
+    void logPosteriorIsTheBailerJonesPosteriorAndMinusInfinityOffItsSupport() {
+        // reference: the posterior typed above (Bailer-Jones 2015, PASP 127, 994); the prior is zero for r <= 0
+        for (double r : new double[] {0.05, 0.7, 1.0, 3.2}) {
+            assertEquals(referenceLogPosterior(r, 0.8, 0.3, L), ParallaxDistance.logPosterior(r, 0.8, 0.3, L), 1e-12, "r=" + r);
+        }
+        assertEquals(Double.NEGATIVE_INFINITY, ParallaxDistance.logPosterior(-0.5, 0.8, 0.3, L));
+        assertEquals(Double.NEGATIVE_INFINITY, ParallaxDistance.logPosterior(0.0, 0.8, 0.3, L));
+    }
+
+    @Test
+    void noModeWithoutAPositiveErrorAndLengthScaleOrWithNonFiniteInputs() {
+        // out-of-domain policy of ParallaxDistance (stated in its Javadoc): NaN, never 0 or a number
+        assertTrue(Double.isNaN(ParallaxDistance.edsdModeKpc(1, 0, L)), "sigma 0");
+        assertTrue(Double.isNaN(ParallaxDistance.edsdModeKpc(1, -0.1, L)), "sigma < 0");
+        assertTrue(Double.isNaN(ParallaxDistance.edsdModeKpc(1, 0.1, 0)), "L 0");
+        assertTrue(Double.isNaN(ParallaxDistance.edsdModeKpc(1, 0.1, -1)), "L < 0");
+        assertTrue(Double.isNaN(ParallaxDistance.edsdModeKpc(Double.NaN, 0.1, L)), "parallax NaN");
+        assertTrue(Double.isNaN(ParallaxDistance.edsdModeKpc(Double.POSITIVE_INFINITY, 0.1, L)), "parallax infinite");
+        assertTrue(Double.isNaN(ParallaxDistance.edsdModeKpc(1, Double.POSITIVE_INFINITY, L)), "sigma infinite");
+        assertTrue(Double.isNaN(ParallaxDistance.edsdModeKpc(1, Double.NaN, L)), "sigma NaN");
+    }
+
+    /**
+     * Root of the Bailer-Jones 2015 cubic near 1/w for a very significant parallax, by Commons Math's Brent solver on
+     * the cubic typed here, bracketed at [0.5/w, 2/w] (one sign change: the cubic is dominated by (w r - 1)/s^2 there).
+     */
+    private static double brentRoot(double w, double s, double lengthKpc) {
+        UnivariateFunction cubic = r -> ((r / lengthKpc - 2) * r + w / (s * s)) * r - 1 / (s * s);
+        return new BrentSolver(1e-300, 1e-17, 1e-300).solve(10000, cubic, 0.5 / w, 2 / w);
+    }
+
+    @Test
+    void highSignificanceModesAreAccurateToMachinePrecision() {
+        // reference: Brent root of the Bailer-Jones 2015 cubic typed above. At w/s of 10^6-10^8 the closed form loses
+        // digits to cancellation (its two cube roots nearly cancel); the mode must still be the root to 1e-12
+        double[][] cases = {{800, 1e-5}, {300, 1e-5}, {100, 1e-4}, {50, 1e-3}};
+        for (double[] c : cases) {
+            double ref = brentRoot(c[0], c[1], L);
+            assertEquals(ref, ParallaxDistance.edsdModeKpc(c[0], c[1], L), 1e-12 * ref, "w=" + c[0] + " s=" + c[1]);
+        }
+    }
+
+    @Test
+    void samplingTheLastPosteriorGivesItsPercentiles() {
+        // reference: numerical integration of the Bailer-Jones 2015 posterior typed in this test
+        EdsdPosterior post = EdsdPosterior.standard();
+        double[] probs = {0.05, StarDeriver.P16, 0.5, StarDeriver.P84, 0.95};
+        double[][] cases = {{1, 0.5}, {0.2, 0.1}, {-0.5, 0.5}, {10, 0.05}};
+        for (double[] c : cases) {
+            double[] ref = referencePercentiles(c[0], c[1], probs);
+            double[] mine = new double[probs.length];
+            assertTrue(post.percentilesKpc(c[0], c[1], L, probs, mine));
+            double width = ref[3] - ref[1];
+            for (int k = 0; k < probs.length; k++) {
+                assertEquals(ref[k], mine[k], 2e-3 * width, "percentile w=" + c[0] + " s=" + c[1] + " p=" + probs[k]);
+                assertEquals(ref[k], post.quantileOfLast(probs[k]), 2e-3 * width, "sample w=" + c[0] + " s=" + c[1] + " p=" + probs[k]);
+            }
+        }
+    }
+
+    @Test
+    void aSinglePercentileIsWrittenIntoAFreshArray() {
+        // reference: numerical integration of the Bailer-Jones 2015 posterior typed in this test
+        double ref = referencePercentiles(1, 0.3, new double[] {0.5})[0];
+        double[] out = new double[1];
+        assertTrue(EdsdPosterior.standard().percentilesKpc(1, 0.3, L, new double[] {0.5}, out));
+        assertEquals(ref, out[0], 1e-3 * ref);
+    }
+
+    @Test
+    void afterAStarWithoutPosteriorNothingIsSampled() {
+        // the "never sample another star's grid" rule of EdsdPosterior: a failed call leaves nothing to sample
+        EdsdPosterior post = EdsdPosterior.standard();
+        assertTrue(Double.isNaN(post.quantileOfLast(0.5)), "no call yet");
+        assertTrue(post.percentilesKpc(1, 0.1, L, new double[] {0.5}, new double[1]));
+        assertTrue(post.quantileOfLast(0.5) > 0);
+        assertFalse(post.percentilesKpc(1, 0, L, new double[] {0.5}, new double[1]));
+        assertTrue(Double.isNaN(post.quantileOfLast(0.5)), "after sigma = 0");
+    }
+
+    @Test
+    void theGridNeedsAtLeastEightIntervals() {
+        // EdsdPosterior's stated minimum grid (8 intervals); 7 is refused with a message naming the rule
+        IllegalArgumentException e = org.junit.jupiter.api.Assertions.assertThrows(IllegalArgumentException.class,
+                () -> new EdsdPosterior(7));
+        assertTrue(e.getMessage().contains("7 intervals (must be >= 8)"), e.getMessage());
+        double[] out = new double[1];
+        // 8 intervals still give a posterior median, to the accuracy of such a coarse grid (reference: numerical
+        // integration of the Bailer-Jones 2015 posterior typed in this test)
+        double ref = referencePercentiles(1, 0.1, new double[] {0.5})[0];
+        assertTrue(new EdsdPosterior(8).percentilesKpc(1, 0.1, L, new double[] {0.5}, out));
+        assertEquals(ref, out[0], 0.01 * ref);
     }
 }
