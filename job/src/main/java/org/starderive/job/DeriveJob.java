@@ -287,7 +287,7 @@ public final class DeriveJob {
                 throw new JobException(JobException.Kind.CONSERVATION, "Row conservation failed: input " + expected
                         + ", output " + got.getKey() + " (rule: every input row appears in the output exactly once); nothing was committed");
             }
-            LOG.info("Row conservation holds: {}", got.getKey());
+            LOG.debug("Row conservation holds: {}", got.getKey());
 
             Summary s = new Summary();
             s.runId = runId;

@@ -164,7 +164,7 @@ public final class OutputLease implements AutoCloseable {
                         fs.delete(new Path(leaseFile(output, g) + RELEASED), false);
                     }
                 }
-                LOG.info("Output {}: lease generation {} taken by run {}", output, mine, runId);
+                LOG.debug("Output {}: lease generation {} taken by run {}", output, mine, runId);
                 return new OutputLease(fs, output, f, mine, runId, staleAfterS);
             }
             List<Long> gens = generations(fs, output);

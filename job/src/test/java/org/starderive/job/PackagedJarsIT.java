@@ -113,6 +113,31 @@ class PackagedJarsIT {
         assertEquals("", diff.toString());
     }
 
+    /** check runs through spark-submit as derive does (what scripts/submit does), and writes nothing there either. */
+    @Test
+    void checkRunsThroughSparkSubmitAndWritesNothing() throws Exception {
+        SparkSession spark = SharedSpark.spark();
+        Path in = tmp.resolve("in-check");
+        TestCatalogs.writeParquet(spark, TestCatalogs.rows(40, 1), in);
+        Path out = tmp.resolve("out-check");
+        Path log = tmp.resolve("check-submit.log");
+        List<String> cmd = new ArrayList<>();
+        cmd.add(java());
+        cmd.addAll(Arrays.asList(prop("starderive.javaOpens").trim().split("\\s+")));
+        cmd.addAll(List.of("-cp", sparkClasspath(), "org.apache.spark.deploy.SparkSubmit", "--master", "local[2]",
+                "--class", "org.starderive.job.Main", prop("starderive.thinJar"),
+                "check", "--input", in.toString(), "--output", out.toString()));
+        int code = run(cmd, log);
+        String text = Files.readString(log, StandardCharsets.UTF_8);
+        assertEquals(0, code, text);
+        assertTrue(text.contains("output columns:") && text.contains("size:") && text.contains("physics on the sample (40 rows"),
+                "the report's sections: " + text);
+        assertTrue(!Files.exists(out), "check wrote the output path");
+        try (java.util.stream.Stream<Path> beside = Files.list(tmp)) {
+            assertTrue(beside.noneMatch(f -> f.getFileName().toString().startsWith(".out-check")), "nothing beside the output");
+        }
+    }
+
     @Test
     void aRunKilledWhileWritingLeavesThePreviousOutputAndARerunIsCorrect() throws Exception {
         SparkSession spark = SharedSpark.spark();
