@@ -1,7 +1,7 @@
 package org.starderive.sample;
 
 /**
- * The published relations the synthetic survey is made with, transcribed a second time, independently of the
+ * The published relations the synthetic survey is made with, typed a second time, independently of the
  * physics core (no code and no coefficient array shared with {@code org.starderive.physics}): a mistyped coefficient
  * or constant in the core then shows up as a recovery bias instead of cancelling out. Each block names its source.
  * What stays shared with the core: the choice of relations themselves (the survey is made with the relations the job

@@ -16,9 +16,9 @@ import org.starderive.physics.TeffRelation;
 import org.starderive.physics.TeffRelations;
 
 /**
- * The synthetic survey's second transcription of the published relations: first against check values computed
+ * The synthetic survey's second typed copy of the published relations: first against check values computed
  * from the published coefficients (reference sheet of the project, "derived" values, and the papers' own solar
- * figures), then against the physics core over grids of colour, [Fe/H] and log g. Two transcriptions made apart
+ * figures), then against the physics core over grids of colour, [Fe/H] and log g. Two typed copies made apart
  * and agreeing to 1e-9 leave a typo in either nowhere to hide: a changed coefficient in the core fails here.
  */
 class IndependentRelationsTest {

@@ -7,9 +7,9 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 import org.junit.jupiter.api.Test;
 
 /**
- * The extinction law against a second transcription of Cardelli, Clayton &amp; Mathis 1989, ApJ 345, 245, eqs. 2a/2b
+ * The extinction law against a second typed copy of Cardelli, Clayton &amp; Mathis 1989, ApJ 345, 245, eqs. 2a/2b
  * (infrared) and 3a/3b (optical), typed here in plain powers (not the nested form of the class) from the paper's
- * coefficients. Every value below is "derived from CCM89 eq. 2 or 3" by this transcription, never read from the class.
+ * coefficients. Every value below is "derived from CCM89 eq. 2 or 3" by this typed copy, never read from the class.
  */
 class CardelliClaytonMathis1989Test {
 
@@ -38,7 +38,7 @@ class CardelliClaytonMathis1989Test {
 
     @Test
     void opticalAndInfraredBandsAtSeveralRvFollowThePublishedEquations() {
-        // derived from CCM89 eqs. 2-3 (transcription above) at the Johnson-Cousins and 2MASS wavelengths of Band and at
+        // derived from CCM89 eqs. 2-3 (typed copy above) at the Johnson-Cousins and 2MASS wavelengths of Band and at
         // points spread over both segments; R_V = 3.1 (diffuse ISM) and the paper's dense-cloud and low values 5.0, 2.5
         double[] lambdas = {0.31, 0.366, 0.438, 0.50, 0.545, 0.60, 0.641, 0.70, 0.798, 0.88, 0.95, 1.235, 1.662, 2.159, 3.0};
         for (double rv : new double[] {3.1, 5.0, 2.5}) {

@@ -15,7 +15,7 @@ class GaiaToJohnsonRiello2021Test {
 
     @Test
     void gMinusVAndItsSlopeFollowTableC2() {
-        // derived from Riello et al. 2021 Table C.2 (the transcription above); slope by central difference
+        // derived from Riello et al. 2021 Table C.2 (the typed copy above); slope by central difference
         for (double c : new double[] {-0.4, 0.0, 0.82, 1.5, 3.0, 4.9}) {
             assertEquals(gMinusV(c), GaiaToJohnsonRiello2021.gMinusV(c), 1e-12, "C=" + c);
             double h = 1e-6;

@@ -8,7 +8,7 @@ import org.junit.jupiter.api.Test;
 /**
  * {@link RadiusMann2015} and {@link MassMann2019} against the published fits typed a second time here, in plain
  * powers: Mann et al. 2015, ApJ 804, 64, Table 1 as corrected in the erratum (Mann et al. 2016, ApJ 819, 87), and
- * Mann et al. 2019, ApJ 871, 63, Table 6 (n = 5). Values are "derived from" those tables by this transcription.
+ * Mann et al. 2019, ApJ 871, 63, Table 6 (n = 5). Values are "derived from" those tables by this typed copy.
  */
 class MannRelationsTest {
 
@@ -61,7 +61,7 @@ class MannRelationsTest {
 
     @Test
     void radiusDerivativesAreThoseOfTheFit() {
-        // central differences of the transcription above (derived from Mann et al. 2015 Table 1)
+        // central differences of the typed copy above (derived from Mann et al. 2015 Table 1)
         double h = 1e-5;
         for (double m : MKS) {
             double dPlain = (Math.log(radius(m + h)) - Math.log(radius(m - h))) / (2 * h);
@@ -105,7 +105,7 @@ class MannRelationsTest {
 
     @Test
     void massDerivativesAreThoseOfTheFit() {
-        // central differences of the transcription above (derived from Mann et al. 2019 Table 6)
+        // central differences of the typed copy above (derived from Mann et al. 2019 Table 6)
         double h = 1e-5;
         double ln10 = Math.log(10);
         for (double m : new double[] {4.1, 5.15, 6.55, 8.2, 9.5, 10.9}) {

@@ -14,7 +14,7 @@ class SurfaceBrightnessKervella2004Test {
 
     @Test
     void angularDiameterFollowsTheDwarfRelationInsideItsColourRange() {
-        // derived from Kervella et al. 2004 (transcription above)
+        // derived from Kervella et al. 2004 (typed copy above)
         double[][] vk = {{5.0, 3.5}, {9.5, 6.0}, {1.0, 1.05}, {12.0, 8.2}};
         for (double[] c : vk) {
             assertEquals(theta(c[0], c[1]), SurfaceBrightnessKervella2004.angularDiameterMas(c[0], c[1]), 1e-12 * theta(c[0], c[1]));
