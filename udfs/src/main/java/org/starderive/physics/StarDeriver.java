@@ -231,7 +231,7 @@ public final class StarDeriver {
             flags |= QualityFlag.MASS_NOT_APPLICABLE.mask();
         }
         out.teffRelations = Double.isNaN(out.teffK) ? 0 : teff.relationMask;
-        out.teffChi2 = teff.count >= 2 ? teff.chi2 : Double.NaN;
+        out.teffChi2 = teff.count >= 2 ? teff.chi2() : Double.NaN;
         out.flags = flags;
         sanitize(out);
         return out;
@@ -246,7 +246,7 @@ public final class StarDeriver {
         if (teff.extrapolated) {
             flags |= TEFF_EXTRAPOLATED.mask();
         }
-        if ((teff.count >= 2 && teff.chi2 > settings.teffDisagreeChi2(teff.count - 1)) || teff.boundBroken) {
+        if ((teff.count >= 2 && teff.chi2() > settings.teffDisagreeChi2(teff.count - 1)) || teff.boundBroken) {
             flags |= TEFF_COLOURS_DISAGREE.mask();
         }
         if (!classKnown) {

@@ -30,7 +30,8 @@ final class TeffBlend {
     double mean;
     double err;
     long relationMask;
-    double chi2;
+    /** The estimate that dominates the blend (its relations, count and χ² are the star's); null without one. */
+    private TeffEstimator dom;
     int count;
     boolean anyColour;
     boolean extrapolated;
@@ -106,6 +107,14 @@ final class TeffBlend {
         blend(f, fRegime, cls != LuminosityClass.EVOLVED);
     }
 
+    /**
+     * χ² of the dominant regime's colours ({@link TeffEstimator#chi2()}), computed only when asked for: the class
+     * iteration blends several times per star, but only the last blend is reported. NaN without an estimate.
+     */
+    double chi2() {
+        return dom == null ? Double.NaN : dom.chi2();
+    }
+
     /** Blends the main (FGK or giant), M-dwarf and hot estimates with the regime weights. */
     private void blend(TeffEstimator f, Regime fRegime, boolean withM) {
         TeffEstimator m = estM;
@@ -124,7 +133,8 @@ final class TeffBlend {
         double upper = withM ? Math.min(f.tUpper, m.tUpper) : f.tUpper;
         double lower = Math.max(f.tLower, h.tLower);
         if (!(sum > 0)) {
-            mean = err = chi2 = Double.NaN;
+            mean = err = Double.NaN;
+            dom = null;
             relationMask = 0;
             count = 0;
             extrapolated = false;
@@ -146,10 +156,9 @@ final class TeffBlend {
         mean += s.dz(ErrorSource.BLEND, spreadT);
         relationMask = (wf > 0 ? f.mask : 0) | (wm > 0 ? m.mask : 0) | (wh > 0 ? h.mask : 0);
         extrapolated = (wf > 0 && f.extrapolated) || (wm > 0 && m.extrapolated) || (wh > 0 && h.extrapolated);
-        TeffEstimator dom = wm >= wf && wm >= wh ? m : wh >= wf ? h : f;
+        dom = wm >= wf && wm >= wh ? m : wh >= wf ? h : f;
         regime = dom == m ? Regime.M_DWARF : dom == h ? Regime.HOT : fRegime;
         count = dom.n;
-        chi2 = dom.chi2;
         if (s.valuesOnly) {
             err = Double.NaN;
             boundBroken = false;

@@ -26,8 +26,12 @@ final class TeffEstimator {
     private final boolean allowExtrapolation;
     private final double[] tEst;
     private final double[] gradBand = new double[Band.COUNT];
-    /** Per used estimate: its first-order contribution from each shared measurement (bands, E(B−V), [Fe/H]). */
-    private final double[][] shared;
+    /**
+     * Per used estimate i, its first-order contribution from each shared measurement q (bands, E(B−V), [Fe/H]), at
+     * [q · relations + i]: source-major, so that χ² reads each source's column in one run. Only the columns of
+     * {@link #activeSources} hold this star's values.
+     */
+    private final double[] bySource;
     /** Per used estimate: its relation's own scatter, squared (independent between relations). */
     private final double[] ownVar;
     /** Covariance matrix of the used estimates (row-major, n × n), factorised in place. */
@@ -35,6 +39,10 @@ final class TeffEstimator {
     private final double[] resid;
     private final double[] ones;
     private final boolean[] groupUsed;
+    /** The shared sources some used estimate depends on (columns of {@link #bySource}), to keep χ² short. */
+    private final int[] activeSources = new int[ErrorSource.COUNT];
+    private final boolean[] isActiveSource = new boolean[ErrorSource.COUNT];
+    private int nActiveSources;
     /** Indices of the relations of each regime (by ordinal), in list order. */
     private final int[][] byRegime = new int[Regime.values().length][];
 
@@ -44,7 +52,9 @@ final class TeffEstimator {
     final double[] c = new double[ErrorSource.COUNT];
     long mask;
     int n;
-    double chi2;
+    /** χ² of this estimate, computed when first asked for ({@link #chi2()}); NaN in a Monte Carlo draw. */
+    private double chi2;
+    private boolean chi2Done;
     boolean anyColour;
     boolean anyOut;
     boolean extrapolated;
@@ -60,7 +70,7 @@ final class TeffEstimator {
         this.tEst = new double[relations.length];
         this.groupIds = new int[relations.length];
         this.groupUsed = new boolean[relations.length];
-        this.shared = new double[relations.length][ErrorSource.COUNT];
+        this.bySource = new double[ErrorSource.COUNT * relations.length];
         this.ownVar = new double[relations.length];
         this.cov = new double[relations.length * relations.length];
         this.resid = new double[relations.length];
@@ -100,15 +110,33 @@ final class TeffEstimator {
      */
     private double correlatedChi2() {
         int m = n;
+        int[] act = activeSources;
+        int na = nActiveSources;
+        for (int a = 1; a < na; a++) { // ascending, as a dense loop would add them: the same sums to the last bit
+            int v = act[a];
+            int b = a - 1;
+            while (b >= 0 && act[b] > v) {
+                act[b + 1] = act[b];
+                b--;
+            }
+            act[b + 1] = v;
+        }
         for (int i = 0; i < m; i++) {
             for (int j = 0; j <= i; j++) {
-                double c = i == j ? ownVar[i] : 0;
-                double[] gi = shared[i];
-                double[] gj = shared[j];
-                for (int q = 0; q < gi.length; q++) {
-                    c += gi[q] * gj[q];
+                cov[i * m + j] = i == j ? ownVar[i] : 0;
+            }
+        }
+        // source by source (every other source is zero in both rows): each element still sums its terms in source
+        // order, but consecutive additions go to different elements, so they need not wait for each other
+        int nr = relations.length;
+        for (int a = 0; a < na; a++) {
+            int col = act[a] * nr;
+            for (int i = 0; i < m; i++) {
+                double gi = bySource[col + i];
+                int row = i * m;
+                for (int j = 0; j <= i; j++) {
+                    cov[row + j] += gi * bySource[col + j];
                 }
-                cov[i * m + j] = c;
             }
         }
         for (int i = 0; i < m; i++) { // Cholesky C = L Lᵀ, L in the lower triangle
@@ -148,17 +176,30 @@ final class TeffEstimator {
 
     void clear() {
         mean = chi2 = Double.NaN;
+        chi2Done = s.valuesOnly; // a draw (values only) fills no covariance inputs: its χ² stays NaN
         if (!s.valuesOnly) {
             Arrays.fill(c, 0); // a Monte Carlo draw (values only) never reads the contributions
         }
         mask = 0;
         n = 0;
+        for (int a = 0; a < nActiveSources; a++) {
+            isActiveSource[activeSources[a]] = false;
+        }
+        nActiveSources = 0;
         anyColour = anyOut = extrapolated = usesLogg = false;
         tUpper = Double.POSITIVE_INFINITY;
         tLower = 0;
     }
 
     private static double sq(double x) { return x * x; }
+
+    private void activate(int source) {
+        if (!isActiveSource[source]) {
+            isActiveSource[source] = true;
+            activeSources[nActiveSources++] = source;
+            Arrays.fill(bySource, source * relations.length, (source + 1) * relations.length, 0);
+        }
+    }
 
     /**
      * Estimates Teff from the relations of {@code regime} at log g {@code logg} (error {@code sLogg}); {@code offsets}
@@ -245,18 +286,31 @@ final class TeffEstimator {
             double w = 1 / (dx * dx * sx2 + sr * sr);
             tEst[n] = t;
             if (!s.valuesOnly) {
-                double[] g = shared[n];
-                Arrays.fill(g, 0);
-                g[bi] += dx * sm[bi];
-                g[ri] -= dx * sm[ri];
-                g[ErrorSource.EBV] -= dx * (rBand[bi] - rBand[ri]) * s.sEbv;
-                if (r.aux() == TeffRelation.Aux.JH) {
-                    double da = r.dTeffDAux(aux);
-                    g[ji] += da * sm[ji];
-                    g[hi] -= da * sm[hi];
-                    g[ErrorSource.EBV] -= da * (rBand[ji] - rBand[hi]) * s.sEbv;
+                // row n starts at zero in every column χ² will read: the columns already active, and each column
+                // this relation activates (zeroed whole when it first becomes active)
+                int nr = relations.length;
+                for (int a = 0; a < nActiveSources; a++) {
+                    bySource[activeSources[a] * nr + n] = 0;
                 }
-                g[ErrorSource.FEH] = r.dTeffDFeh(x, feh, logg) * s.sFeh;
+                boolean jh = r.aux() == TeffRelation.Aux.JH;
+                activate(bi);
+                activate(ri);
+                activate(ErrorSource.EBV);
+                activate(ErrorSource.FEH);
+                if (jh) {
+                    activate(ji);
+                    activate(hi);
+                }
+                bySource[bi * nr + n] += dx * sm[bi];
+                bySource[ri * nr + n] -= dx * sm[ri];
+                bySource[ErrorSource.EBV * nr + n] -= dx * (rBand[bi] - rBand[ri]) * s.sEbv;
+                if (jh) {
+                    double da = r.dTeffDAux(aux);
+                    bySource[ji * nr + n] += da * sm[ji];
+                    bySource[hi * nr + n] -= da * sm[hi];
+                    bySource[ErrorSource.EBV * nr + n] -= da * (rBand[ji] - rBand[hi]) * s.sEbv;
+                }
+                bySource[ErrorSource.FEH * nr + n] = r.dTeffDFeh(x, feh, logg) * s.sFeh;
                 ownVar[n] = sr * sr;
             }
             n++;
@@ -298,6 +352,18 @@ final class TeffEstimator {
         c[ErrorSource.SCATTER] = Math.sqrt(scatterVar) / sumW;
         c[ErrorSource.ZP] = sumWZp / sumW;
         s.mask(c);
-        chi2 = correlatedChi2();
+    }
+
+    /**
+     * χ² of the current estimate ({@link #correlatedChi2()}), computed on first request and kept until the next
+     * {@link #estimate}: a star is often estimated several times (class iteration, regimes) but only the estimate
+     * that is reported is judged. NaN without an estimate and in a Monte Carlo draw.
+     */
+    double chi2() {
+        if (!chi2Done) {
+            chi2 = n == 0 ? Double.NaN : correlatedChi2();
+            chi2Done = true;
+        }
+        return chi2;
     }
 }
