@@ -26,11 +26,19 @@ final class TeffEstimator {
     private final boolean allowExtrapolation;
     private final double[] tEst;
     private final double[] gradBand = new double[Band.COUNT];
+    /** Most shared-measurement terms one estimate has: its two bands, E(B−V) twice, J and H, [Fe/H]. */
+    private static final int MAX_TERMS = 7;
     /**
-     * Per used estimate i, its first-order contribution from each shared measurement q (bands, E(B−V), [Fe/H]), at
-     * [q · relations + i]: source-major, so that χ² reads each source's column in one run. Only the columns of
-     * {@link #activeSources} hold this star's values.
+     * Per used estimate i, its first-order contributions from the shared measurements (bands, E(B−V), [Fe/H]) as
+     * terms in the order they arise: source termSource[i · MAX_TERMS + k], value termValue[…]; nTerms[i] of them.
+     * Kept sparse while estimating (a star is estimated several times); χ² makes them dense once.
      */
+    private final int[] termSource;
+    private final double[] termValue;
+    private final int[] nTerms;
+    /** χ² scratch: the shared sources used, ascending; each one's column; the dense columns (source-major). */
+    private final int[] activeSources = new int[ErrorSource.COUNT];
+    private final int[] columnOf = new int[ErrorSource.COUNT];
     private final double[] bySource;
     /** Per used estimate: its relation's own scatter, squared (independent between relations). */
     private final double[] ownVar;
@@ -39,10 +47,6 @@ final class TeffEstimator {
     private final double[] resid;
     private final double[] ones;
     private final boolean[] groupUsed;
-    /** The shared sources some used estimate depends on (columns of {@link #bySource}), to keep χ² short. */
-    private final int[] activeSources = new int[ErrorSource.COUNT];
-    private final boolean[] isActiveSource = new boolean[ErrorSource.COUNT];
-    private int nActiveSources;
     /** Indices of the relations of each regime (by ordinal), in list order. */
     private final int[][] byRegime = new int[Regime.values().length][];
 
@@ -71,6 +75,9 @@ final class TeffEstimator {
         this.groupIds = new int[relations.length];
         this.groupUsed = new boolean[relations.length];
         this.bySource = new double[ErrorSource.COUNT * relations.length];
+        this.termSource = new int[MAX_TERMS * relations.length];
+        this.termValue = new double[MAX_TERMS * relations.length];
+        this.nTerms = new int[relations.length];
         this.ownVar = new double[relations.length];
         this.cov = new double[relations.length * relations.length];
         this.resid = new double[relations.length];
@@ -110,27 +117,41 @@ final class TeffEstimator {
      */
     private double correlatedChi2() {
         int m = n;
+        // the sources the used estimates share, ascending (as a dense loop over all sources would add them: the
+        // same sums to the last bit), each with its own column
         int[] act = activeSources;
-        int na = nActiveSources;
-        for (int a = 1; a < na; a++) { // ascending, as a dense loop would add them: the same sums to the last bit
-            int v = act[a];
-            int b = a - 1;
-            while (b >= 0 && act[b] > v) {
-                act[b + 1] = act[b];
-                b--;
+        int na = 0;
+        Arrays.fill(columnOf, -1);
+        for (int i = 0; i < m; i++) {
+            for (int k = 0; k < nTerms[i]; k++) {
+                int q = termSource[i * MAX_TERMS + k];
+                if (columnOf[q] < 0) {
+                    columnOf[q] = 0;
+                    act[na++] = q;
+                }
             }
-            act[b + 1] = v;
+        }
+        Arrays.sort(act, 0, na);
+        int nr = relations.length;
+        for (int a = 0; a < na; a++) {
+            columnOf[act[a]] = a * nr;
+        }
+        Arrays.fill(bySource, 0, na * nr, 0);
+        for (int i = 0; i < m; i++) { // the terms of each estimate, added in the order they arose
+            for (int k = 0; k < nTerms[i]; k++) {
+                int t = i * MAX_TERMS + k;
+                bySource[columnOf[termSource[t]] + i] += termValue[t];
+            }
         }
         for (int i = 0; i < m; i++) {
             for (int j = 0; j <= i; j++) {
                 cov[i * m + j] = i == j ? ownVar[i] : 0;
             }
         }
-        // source by source (every other source is zero in both rows): each element still sums its terms in source
-        // order, but consecutive additions go to different elements, so they need not wait for each other
-        int nr = relations.length;
+        // source by source: each element still sums its terms in source order, but consecutive additions go to
+        // different elements, so they need not wait for each other
         for (int a = 0; a < na; a++) {
-            int col = act[a] * nr;
+            int col = a * nr;
             for (int i = 0; i < m; i++) {
                 double gi = bySource[col + i];
                 int row = i * m;
@@ -182,24 +203,12 @@ final class TeffEstimator {
         }
         mask = 0;
         n = 0;
-        for (int a = 0; a < nActiveSources; a++) {
-            isActiveSource[activeSources[a]] = false;
-        }
-        nActiveSources = 0;
         anyColour = anyOut = extrapolated = usesLogg = false;
         tUpper = Double.POSITIVE_INFINITY;
         tLower = 0;
     }
 
     private static double sq(double x) { return x * x; }
-
-    private void activate(int source) {
-        if (!isActiveSource[source]) {
-            isActiveSource[source] = true;
-            activeSources[nActiveSources++] = source;
-            Arrays.fill(bySource, source * relations.length, (source + 1) * relations.length, 0);
-        }
-    }
 
     /**
      * Estimates Teff from the relations of {@code regime} at log g {@code logg} (error {@code sLogg}); {@code offsets}
@@ -286,31 +295,26 @@ final class TeffEstimator {
             double w = 1 / (dx * dx * sx2 + sr * sr);
             tEst[n] = t;
             if (!s.valuesOnly) {
-                // row n starts at zero in every column χ² will read: the columns already active, and each column
-                // this relation activates (zeroed whole when it first becomes active)
-                int nr = relations.length;
-                for (int a = 0; a < nActiveSources; a++) {
-                    bySource[activeSources[a] * nr + n] = 0;
-                }
-                boolean jh = r.aux() == TeffRelation.Aux.JH;
-                activate(bi);
-                activate(ri);
-                activate(ErrorSource.EBV);
-                activate(ErrorSource.FEH);
-                if (jh) {
-                    activate(ji);
-                    activate(hi);
-                }
-                bySource[bi * nr + n] += dx * sm[bi];
-                bySource[ri * nr + n] -= dx * sm[ri];
-                bySource[ErrorSource.EBV * nr + n] -= dx * (rBand[bi] - rBand[ri]) * s.sEbv;
-                if (jh) {
+                int t0 = n * MAX_TERMS;
+                int e = t0;
+                termSource[e] = bi;
+                termValue[e++] = dx * sm[bi];
+                termSource[e] = ri;
+                termValue[e++] = -(dx * sm[ri]);
+                termSource[e] = ErrorSource.EBV;
+                termValue[e++] = -(dx * (rBand[bi] - rBand[ri]) * s.sEbv);
+                if (r.aux() == TeffRelation.Aux.JH) {
                     double da = r.dTeffDAux(aux);
-                    bySource[ji * nr + n] += da * sm[ji];
-                    bySource[hi * nr + n] -= da * sm[hi];
-                    bySource[ErrorSource.EBV * nr + n] -= da * (rBand[ji] - rBand[hi]) * s.sEbv;
+                    termSource[e] = ji;
+                    termValue[e++] = da * sm[ji];
+                    termSource[e] = hi;
+                    termValue[e++] = -(da * sm[hi]);
+                    termSource[e] = ErrorSource.EBV;
+                    termValue[e++] = -(da * (rBand[ji] - rBand[hi]) * s.sEbv);
                 }
-                bySource[ErrorSource.FEH * nr + n] = r.dTeffDFeh(x, feh, logg) * s.sFeh;
+                termSource[e] = ErrorSource.FEH;
+                termValue[e++] = r.dTeffDFeh(x, feh, logg) * s.sFeh;
+                nTerms[n] = e - t0;
                 ownVar[n] = sr * sr;
             }
             n++;
