@@ -121,7 +121,12 @@ final class TeffBlend {
         TeffEstimator h = estHot;
         double wm = withM && m.n > 0 ? Regime.mDwarfWeight(m.mean) : 0;
         double wh = h.n > 0 ? Regime.hotWeight(h.mean) : 0;
-        double wf = f.n > 0 ? 1 - wm - wh : 0;
+        // a colour beyond the red edge of the FGK (or giant) relations by more than twice its error, at an edge cooler
+        // than M_BLEND_LO_K, puts the star where only the M-dwarf regime holds: the other colours' FGK or giant
+        // estimate would be a relation used outside its regime (a late M dwarf without V or BP otherwise gets
+        // 4300-5300 K from J-Ks); with no M-dwarf estimate the star gets no Teff (COLOUR_OUT_OF_RANGE)
+        boolean redderThanMain = f.tUpper <= Regime.M_BLEND_LO_K;
+        double wf = f.n > 0 && !redderThanMain ? 1 - wm - wh : 0;
         if (wf < 0) {
             wf = 0;
         }

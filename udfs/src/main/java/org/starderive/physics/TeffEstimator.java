@@ -216,8 +216,9 @@ final class TeffEstimator {
      * windowed relation may give (its own window, or the blend zone's upper edge).
      *
      * <p>In a Monte Carlo draw ({@link StarState#valuesOnly}) only what the draw's value needs is computed: the mean,
-     * the mask, n, the flags of the colours; not the Teff bounds (tUpper, tLower: they only flag the nominal
-     * estimate), the gradients or the first-order contributions. The mean is the same to the last bit either way.
+     * the mask, n, the flags of the colours and the Teff bounds (tUpper, tLower: a bound below the M-dwarf regime's
+     * edge decides which regime a star is in, see {@link TeffBlend}); not the gradients or the first-order
+     * contributions. The mean is the same to the last bit either way.
      */
     void estimate(Regime regime, double logg, double sLogg, double[] offsets, double teffMaxK) {
         clear();
@@ -267,7 +268,7 @@ final class TeffEstimator {
             if (!in) {
                 anyOut = true;
             }
-            if (!in && !vo) {
+            if (!in) {
                 double margin = 2 * Math.sqrt(sx2);
                 if (x > r.colourMax() + margin) {
                     tUpper = Math.min(tUpper, r.teff(r.colourMax(), feh, logg, aux));

@@ -1,0 +1,82 @@
+package org.starderive.physics;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertNull;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import org.junit.jupiter.api.Test;
+
+/**
+ * A colour far beyond the red edge of the FGK dwarf relations puts a star where only the M-dwarf regime holds, and
+ * the other colours' FGK estimate must then not be reported. The case that matters: a late M dwarf of a deep survey
+ * is too faint for V and BP, so no M-dwarf relation applies, while its J−Ks lies inside the Casagrande et al. 2010
+ * range (0.07–0.80, relations sheet section 2) because J−Ks is nearly flat from K5 to late M (common practice) —
+ * evaluated there it gives a K-dwarf temperature, 50–80 % too hot. Ranges: Casagrande et al. 2021 G−Ks, dwarfs
+ * 0.20–2.80 (relations sheet section 4); Mann et al. 2015 V−J check value 4.413 → 3228 K (relations sheet
+ * section 11, derived from the published coefficients).
+ */
+class RedStarRegimeTest {
+    private static final double PLX_MAS = 6.0;
+
+    /** G, RP, I_C, J, H, Ks only (no V, no BP), no reddening: G−Ks and J−Ks as given. */
+    private static StarInput noBlueBands(double gMinusKs, double jMinusKs) {
+        double ks = 14.0;
+        return new StarInput().parallax(PLX_MAS, 0.05)
+                .magnitude(Band.G, ks + gMinusKs, 0.003)
+                .magnitude(Band.RP, ks + gMinusKs - 1.4, 0.005)
+                .magnitude(Band.IC, ks + gMinusKs - 1.3, 0.02)
+                .magnitude(Band.J, ks + jMinusKs, 0.02)
+                .magnitude(Band.H, ks + jMinusKs - 0.25, 0.02)
+                .magnitude(Band.KS, ks, 0.02)
+                .ebv(0, 0.005);
+    }
+
+    @Test
+    void lateMDwarfWithoutVOrBpGetsNoFgkTemperature() {
+        // G−Ks 4.2: 1.4 mag beyond the C21 dwarf red edge; J−Ks 0.70: inside the C10 range
+        StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(noBlueBands(4.2, 0.70), new StarResult());
+        assertTrue(Double.isNaN(r.teffK), "no Teff: the star is redder than any FGK relation reaches, got " + r.teffK);
+        assertTrue(r.has(QualityFlag.COLOUR_OUT_OF_RANGE));
+        assertFalse(r.has(QualityFlag.TEFF_COLOURS_DISAGREE));
+        assertNull(r.regime);
+        assertTrue(Double.isNaN(r.lumLsun) && Double.isNaN(r.radiusRsun) && Double.isNaN(r.massMsun));
+        // the distance does not depend on the colours
+        assertEquals(1000 / PLX_MAS, r.distPc, 1e-9);
+    }
+
+    @Test
+    void theSameStarInsideTheG_KsRangeKeepsItsFgkTemperature() {
+        // control: G−Ks 2.5 lies inside 0.20–2.80, so nothing says the star is cooler than the FGK relations reach
+        StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(noBlueBands(2.5, 0.70), new StarResult());
+        assertTrue(r.teffK > 4100 && r.teffK < 5000, "a K dwarf's Teff from G−Ks and J−Ks, got " + r.teffK);
+        assertEquals(Regime.FGK_DWARF, r.regime);
+        assertFalse(r.has(QualityFlag.COLOUR_OUT_OF_RANGE));
+    }
+
+    @Test
+    void monteCarloDrawsJudgeTheRegimeTheSameWay() {
+        double[][] q = new double[MonteCarloDeriver.NQ][3];
+        new MonteCarloDeriver(DeriveSettings.defaults(), 200, 7).percentiles(noBlueBands(4.2, 0.70), 11, q);
+        int teff = java.util.Arrays.asList(MonteCarloDeriver.QUANTITIES).indexOf("teff");
+        assertTrue(teff >= 0, "teff is a Monte Carlo quantity");
+        assertTrue(Double.isNaN(q[teff][1]), "no drawn Teff either, got median " + q[teff][1]);
+    }
+
+    @Test
+    void anMDwarfWithVStillGetsItsMannTemperature() {
+        // V−J 4.413 (Mann et al. 2015 check value 3228 K); G−Ks 3.98, beyond the C21 dwarf edge: the M-dwarf
+        // regime takes the star, and the FGK estimate (here from J−Ks) is not blended in
+        double ks = 10.0;
+        double j = ks + 0.85;
+        StarInput in = new StarInput().parallax(40, 0.05)
+                .magnitude(Band.V, j + 4.413, 0.01)
+                .magnitude(Band.J, j, 0.02)
+                .magnitude(Band.KS, ks, 0.02)
+                .magnitude(Band.G, ks + 3.98, 0.003)
+                .ebv(0, 0.005);
+        StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
+        assertEquals(Regime.M_DWARF, r.regime);
+        assertEquals(3228, r.teffK, 1.0, "Mann et al. 2015 V−J alone");
+    }
+}
