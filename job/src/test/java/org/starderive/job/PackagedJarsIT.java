@@ -82,13 +82,7 @@ class PackagedJarsIT {
 
         Path outSubmit = tmp.resolve("out-submit");
         Path logSubmit = tmp.resolve("submit.log");
-        List<String> cmd = new ArrayList<>();
-        cmd.add(java());
-        cmd.addAll(Arrays.asList(prop("starderive.javaOpens").trim().split("\\s+")));
-        cmd.addAll(List.of("-cp", sparkClasspath(), "org.apache.spark.deploy.SparkSubmit", "--master", "local[2]",
-                "--class", "org.starderive.job.Main", prop("starderive.thinJar"),
-                "derive", "--input", in.toString(), "--output", outSubmit.toString()));
-        int b = run(cmd, logSubmit);
+        int b = run(sparkSubmit("derive", "--input", in.toString(), "--output", outSubmit.toString()), logSubmit);
         String lb = Files.readString(logSubmit, StandardCharsets.UTF_8);
         assertEquals(0, b, lb);
         assertTrue(lb.contains("40 rows in, 40 rows out"), lb);
@@ -113,6 +107,20 @@ class PackagedJarsIT {
         assertEquals("", diff.toString());
     }
 
+    /**
+     * The thin jar through Spark's own submit entry point, as {@code spark-submit --master local[2] --class
+     * org.starderive.job.Main THIN_JAR ARGS} runs it (what scripts/submit does), with the JVM options Spark needs.
+     */
+    private static List<String> sparkSubmit(String... jobArgs) throws IOException {
+        List<String> cmd = new ArrayList<>();
+        cmd.add(java());
+        cmd.addAll(Arrays.asList(prop("starderive.javaOpens").trim().split("\\s+")));
+        cmd.addAll(List.of("-cp", sparkClasspath(), "org.apache.spark.deploy.SparkSubmit", "--master", "local[2]",
+                "--class", "org.starderive.job.Main", prop("starderive.thinJar")));
+        cmd.addAll(Arrays.asList(jobArgs));
+        return cmd;
+    }
+
     /** check runs through spark-submit as derive does (what scripts/submit does), and writes nothing there either. */
     @Test
     void checkRunsThroughSparkSubmitAndWritesNothing() throws Exception {
@@ -121,13 +129,7 @@ class PackagedJarsIT {
         TestCatalogs.writeParquet(spark, TestCatalogs.rows(40, 1), in);
         Path out = tmp.resolve("out-check");
         Path log = tmp.resolve("check-submit.log");
-        List<String> cmd = new ArrayList<>();
-        cmd.add(java());
-        cmd.addAll(Arrays.asList(prop("starderive.javaOpens").trim().split("\\s+")));
-        cmd.addAll(List.of("-cp", sparkClasspath(), "org.apache.spark.deploy.SparkSubmit", "--master", "local[2]",
-                "--class", "org.starderive.job.Main", prop("starderive.thinJar"),
-                "check", "--input", in.toString(), "--output", out.toString()));
-        int code = run(cmd, log);
+        int code = run(sparkSubmit("check", "--input", in.toString(), "--output", out.toString()), log);
         String text = Files.readString(log, StandardCharsets.UTF_8);
         assertEquals(0, code, text);
         assertTrue(text.contains("output columns:") && text.contains("size:") && text.contains("physics on the sample (40 rows"),
