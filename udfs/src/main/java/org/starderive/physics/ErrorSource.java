@@ -16,8 +16,13 @@ package org.starderive.physics;
  * FEH           [Fe/H] error; without one or with no [Fe/H],         [Fe/H] (the assumed value carries its spread)
  *               physics.feh_err_default
  * LOGG          log g prior error of evolved stars                   the log g of the Gaia-band relations (evolved)
- * SCATTER       each colour relation's own scatter, independent      that relation's Teff
- *               between relations (one z per relation in a draw)
+ * SCATTER       each FGK-dwarf or giant colour relation's own        that relation's Teff
+ *               scatter, independent between relations (one z per
+ *               relation in a draw)
+ * SCATTER_M     the same for the M-dwarf relations (Mann et al.      that relation's Teff
+ *               2015): a source of its own, so that a K7–M0 blend
+ *               adds the two regimes' scatters as independent
+ * SCATTER_HOT   the same for the hot-star relation (Flower 1996)     that relation's Teff
  * ZP            temperature-scale zero points, one shared z          every relation's Teff, times its zero point
  * GV            G→V conversion scatter (Riello et al. 2021)          V computed from G
  * MU            the distance (inverse parallax or posterior)         the distance modulus (a draw samples a distance)
@@ -41,15 +46,23 @@ public final class ErrorSource {
     public static final int RADIUS_REL = Band.COUNT + 7;
     public static final int MASS_REL = Band.COUNT + 8;
     public static final int BLEND = Band.COUNT + 9;
+    public static final int SCATTER_M = Band.COUNT + 10;
+    public static final int SCATTER_HOT = Band.COUNT + 11;
     /** Number of sources. */
-    public static final int COUNT = Band.COUNT + 10;
+    public static final int COUNT = Band.COUNT + 12;
+
+    /** The scatter source of the colour relations of {@code regime}. */
+    public static int scatterOf(Regime regime) {
+        return regime == Regime.M_DWARF ? SCATTER_M : regime == Regime.HOT ? SCATTER_HOT : SCATTER;
+    }
 
     /** A short name of source {@code j}, for messages and tests. */
     public static String name(int j) {
         if (j < Band.COUNT) {
             return "mag_" + Band.values()[j].suffix();
         }
-        String[] n = {"ebv", "feh", "logg", "scatter", "zero_point", "g_to_v", "distance", "radius_relation", "mass_relation", "blend"};
+        String[] n = {"ebv", "feh", "logg", "scatter", "zero_point", "g_to_v", "distance", "radius_relation", "mass_relation", "blend",
+            "scatter_m_dwarf", "scatter_hot"};
         return n[j - Band.COUNT];
     }
 }

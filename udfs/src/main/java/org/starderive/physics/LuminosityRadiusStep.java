@@ -126,9 +126,14 @@ final class LuminosityRadiusStep {
         double lnTheta = w == 0 ? lnThetaBc : w == 1 ? lnThetaM : w * lnThetaM + (1 - w) * lnThetaBc;
         out.angDiamMas = Math.exp(lnTheta);
         if (!vo && !Double.isNaN(lnTheta)) {
+            // blended, the weight moves with the M-dwarf Teff: d ln θ = w d ln θ_R + (1 − w) d ln θ_BC
+            // + (ln θ_R − ln θ_BC) dw, as for M_bol below
+            boolean blended = w > 0 && w < 1;
+            double[] dwM = t.dwM;
             double v2 = 0;
             for (int j = 0; j < NSRC; j++) {
-                v2 += sq((w > 0 ? w * workM[j] : 0) + (w < 1 ? (1 - w) * work[j] : 0));
+                v2 += sq((w > 0 ? w * workM[j] : 0) + (w < 1 ? (1 - w) * work[j] : 0)
+                        + (blended ? dwM[j] * (lnThetaM - lnThetaBc) : 0));
             }
             out.angDiamErrMas = out.angDiamMas * Math.sqrt(v2);
         }

@@ -138,11 +138,11 @@ public final class MonteCarloDeriver {
                     }
                 }
             }
-            double scatterOn = (on & (1L << ErrorSource.SCATTER)) != 0 ? 1 : 0;
             // each relation's own scatter (independent) and the temperature scales' zero points (one shared z)
             for (int i = 0; i < nRel; i++) {
                 int k = usedRelations[i];
                 TeffRelation r = relations[k];
+                double scatterOn = (on & (1L << ErrorSource.scatterOf(r.regime()))) != 0 ? 1 : 0;
                 offsets[k] = scatterOn * r.scatterK(b.teffK) * g.sample() + r.zeroPointK() * z[ErrorSource.ZP];
             }
             // distance

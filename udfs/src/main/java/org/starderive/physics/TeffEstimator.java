@@ -358,7 +358,7 @@ final class TeffEstimator {
         c[ErrorSource.EBV] = gEbv * s.sEbv / sumW;
         c[ErrorSource.FEH] = gFeh * s.sFeh / sumW;
         c[ErrorSource.LOGG] = gLogg * sLogg / sumW;
-        c[ErrorSource.SCATTER] = Math.sqrt(scatterVar) / sumW;
+        c[ErrorSource.scatterOf(regime)] = Math.sqrt(scatterVar) / sumW; // each regime's scatter independent
         c[ErrorSource.ZP] = sumWZp / sumW;
         s.mask(c);
     }

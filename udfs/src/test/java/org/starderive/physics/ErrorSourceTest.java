@@ -90,7 +90,7 @@ class ErrorSourceTest {
             }
         }
         // every kind of source must have been exercised somewhere
-        for (String s : new String[] {"mag_v", "mag_g", "mag_ks", "ebv", "feh", "logg", "scatter", "zero_point",
+        for (String s : new String[] {"mag_v", "mag_g", "mag_ks", "ebv", "feh", "logg", "scatter", "scatter_m_dwarf", "zero_point",
                 "g_to_v", "distance", "radius_relation", "mass_relation", "blend"}) {
             assertTrue(seen.contains(s), "source never compared: " + s + " (compared: " + seen + ")");
         }
