@@ -179,7 +179,7 @@ class LuminosityRadiusStepTest {
         double v0 = in.mag[Band.V.ordinal()];
         assertEquals(thetaFromFluxMas(v0, r.teffK), r.angDiamMas, 1e-9 * r.angDiamMas);
         assertEquals(BolometricCorrectionTest.typedBcV(r.teffK), r.bcV, 1e-9);
-        // no distance, no absolute quantity (README: NULL where a value cannot be derived)
+        // README flag table, PARALLAX_MISSING: "no distance, no absolute quantities"
         assertNothingAbsolute(r, "no distance");
         // θ's error: ln θ = ½ ln L(10 pc) + 2 ln(Teff⊙/Teff) moves with V directly and through Teff (only V's error on)
         StarResult onlyV = onlySource(in, Band.V.ordinal());
@@ -448,6 +448,8 @@ class LuminosityRadiusStepTest {
             StarResult r = d.derive(mDwarfAt10pc(mKs[i]), new StarResult());
             assertEquals(mKs[i], r.absMag[Band.KS.ordinal()], 0.0);
             assertEquals(radiusRoute[i] ? 1.0 : 0.0, r.radiusMksWeight, 0.0, "M_Ks " + mKs[i]);
+            // README flag table, BC_UNRELIABLE: L on the BC of a dwarf below 4000 K, where there is no M-dwarf radius
+            assertEquals(!radiusRoute[i], r.has(QualityFlag.BC_UNRELIABLE), "M_Ks " + mKs[i]);
             double expected = radiusRoute[i] ? MannRelationsTest.radiusFeh(mKs[i], 0.0)
                     : radiusRsun(lumLsun(mKs[i] + 4.85 + BolometricCorrectionTest.typedBcV(r.teffK)), r.teffK);
             assertEquals(expected, r.radiusRsun, 1e-9 * expected, "M_Ks " + mKs[i]);
