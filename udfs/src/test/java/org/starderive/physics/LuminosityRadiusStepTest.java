@@ -284,6 +284,12 @@ class LuminosityRadiusStepTest {
         ObjDoubleConsumer<StarInput> feh = (s, dx) -> s.feh += dx;
         assertClose(term(in, feh, in.fehErr, x -> blendMbol(in, x)), r.mbolErrMag, "[Fe/H] M_bol");
         assertClose(term(in, feh, in.fehErr, lnR), r.radiusErrRsun / r.radiusRsun, "[Fe/H] ln R");
+        // the distance moves both routes' M_bol alike but θ on the radius route only (θ = 2R/d; Teff and w stay)
+        r = onlySource(in, ErrorSource.MU);
+        ObjDoubleConsumer<StarInput> plx = (s, dx) -> s.parallaxMas += dx;
+        assertClose(term(in, plx, in.parallaxErrMas, x -> blendMbol(in, x)), r.mbolErrMag, "distance M_bol");
+        assertClose(term(in, plx, in.parallaxErrMas, lnR), r.radiusErrRsun / r.radiusRsun, "distance ln R");
+        assertClose(term(in, plx, in.parallaxErrMas, x -> blendLnTheta(in, x)), r.angDiamErrMas / r.angDiamMas, "distance ln θ");
     }
 
     /**
@@ -407,16 +413,19 @@ class LuminosityRadiusStepTest {
     @Test
     void bandErrorsMatchCentralDifferencesOfTheTypedChain() {
         // V on the BC route (V₀ and Teff both move); Ks on the radius route (M_Ks moves, Teff from V−J, V−I_C does not)
-        StarInput twin = twinAt(50, 0.01);
-        StarResult r = onlySource(twin, Band.V.ordinal());
+        // σ_ϖ 1 mas: a distance error (σ_μ 0.04 mag) larger than the band's own, which must stay out of it
+        StarInput twin = twinAt(50, 1);
         double mu = mu(50);
         ToDoubleFunction<StarResult> mbol = x -> twin.mag[Band.V.ordinal()] + BolometricCorrectionTest.typedBcV(x.teffK) - mu;
-        double sMbol = bandTerm(twin, Band.V, mbol);
-        assertEquals(sMbol, r.mbolErrMag, 0.01 * sMbol);
-        double sLnR = bandTerm(twin, Band.V, x -> Math.log(radiusRsun(lumLsun(mbol.applyAsDouble(x)), x.teffK)));
-        assertEquals(sLnR, r.radiusErrRsun / r.radiusRsun, 0.01 * sLnR);
-        double sLnTheta = bandTerm(twin, Band.V, x -> Math.log(thetaFromFluxMas(twin.mag[Band.V.ordinal()], x.teffK)));
-        assertEquals(sLnTheta, r.angDiamErrMas / r.angDiamMas, 0.01 * sLnTheta);
+        for (Band band : new Band[] {Band.B, Band.V}) {
+            StarResult r = onlySource(twin, band.ordinal());
+            String what = "twin, band " + band;
+            assertClose(bandTerm(twin, band, mbol), r.mbolErrMag, what + " M_bol");
+            assertClose(bandTerm(twin, band, x -> Math.log(radiusRsun(lumLsun(mbol.applyAsDouble(x)), x.teffK))),
+                    r.radiusErrRsun / r.radiusRsun, what + " ln R");
+            assertClose(bandTerm(twin, band, x -> Math.log(thetaFromFluxMas(twin.mag[Band.V.ordinal()], x.teffK))),
+                    r.angDiamErrMas / r.angDiamMas, what + " ln θ");
+        }
 
         StarInput barnard = RegimeTest.barnardsStar();
         StarResult m = onlySource(barnard, Band.KS.ordinal());

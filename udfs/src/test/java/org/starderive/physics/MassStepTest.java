@@ -147,6 +147,9 @@ class MassStepTest {
         }
         StarResult one = onlySource(in, ErrorSource.FEH);
         assertClose(LuminosityRadiusStepTest.term(in, (s, dx) -> s.feh += dx, in.fehErr, lnM), one.massErrMsun / one.massMsun, "[Fe/H] ln M");
+        one = onlySource(in, ErrorSource.MU);
+        assertClose(LuminosityRadiusStepTest.term(in, (s, dx) -> s.parallaxMas += dx, in.parallaxErrMas, lnM),
+                one.massErrMsun / one.massMsun, "distance ln M");
     }
 
     @Test
