@@ -51,6 +51,12 @@ class BolometricCorrectionTest {
     private static final double[] HOT = {-0.118115450538963e6, 0.137145973583929e6, -0.636233812100225e5,
         0.147412923562646e5, -0.170587278406872e4, 0.788731721804990e2};
 
+    /** BC_V of Flower 1996 / Torres 2010 Table 1 from the coefficients typed above: the middle set for 3.70 ≤ log Teff ≤ 3.90. */
+    static double typedBcV(double teffK) {
+        double x = Math.log10(teffK);
+        return poly(x < 3.70 ? COOL : x <= 3.90 ? MID : HOT, x);
+    }
+
     private static double poly(double[] k, double x) {
         double s = 0;
         for (int i = 0; i < k.length; i++) {

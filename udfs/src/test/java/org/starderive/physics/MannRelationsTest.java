@@ -13,11 +13,11 @@ import org.junit.jupiter.api.Test;
 class MannRelationsTest {
 
     // Mann et al. 2015 Table 1 (erratum): R = a + b M_Ks + c M_Ks^2; with [Fe/H]: (a' + b' M_Ks + c' M_Ks^2)(1 + f [Fe/H])
-    private static double radius(double mKs) {
+    static double radius(double mKs) {
         return 1.9515 - 0.3520 * mKs + 0.01680 * mKs * mKs;
     }
 
-    private static double radiusFeh(double mKs, double feh) {
+    static double radiusFeh(double mKs, double feh) {
         return (1.9305 - 0.3466 * mKs + 0.01647 * mKs * mKs) * (1 + 0.04458 * feh);
     }
 
@@ -26,7 +26,7 @@ class MannRelationsTest {
     private static final double[] B19 = {-0.647, -0.207, -6.53e-4, 7.13e-3, 1.84e-4, -1.60e-4};
     private static final double F19 = -0.0035;
 
-    private static double logMass(double mKs) {
+    static double logMass(double mKs) {
         double s = 0;
         for (int i = 0; i < A19.length; i++) {
             s += A19[i] * Math.pow(mKs - 7.5, i);
@@ -34,7 +34,7 @@ class MannRelationsTest {
         return s;
     }
 
-    private static double logMassFeh(double mKs, double feh) {
+    static double logMassFeh(double mKs, double feh) {
         double s = 0;
         for (int i = 0; i < B19.length; i++) {
             s += B19[i] * Math.pow(mKs - 7.5, i);

@@ -55,7 +55,7 @@ class MassLuminosityTest {
         return A[i] * Math.log10(m) + B[i];
     }
 
-    private static double segLogM(int i, double logL) {
+    static double segLogM(int i, double logL) {
         return (logL - B[i]) / A[i];
     }
 
