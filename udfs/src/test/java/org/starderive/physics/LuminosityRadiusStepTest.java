@@ -5,7 +5,6 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.util.function.ObjDoubleConsumer;
 import java.util.function.ToDoubleFunction;
-import org.junit.jupiter.api.Disabled;
 import org.junit.jupiter.api.Test;
 
 /**
@@ -337,10 +336,9 @@ class LuminosityRadiusStepTest {
     /**
      * θ is blended in log with the weight w of the radius route, and w moves with every source of the Mann
      * temperature (V, I_C, J, [Fe/H] here): d ln θ = w d ln θ_R + (1 − w) d ln θ_BC + (ln θ_R − ln θ_BC) dw, as M_bol's
-     * error already does. Disabled: the step leaves out the dw term for θ (for V alone it gives σ_θ/θ = 0.0022 where
-     * the typed blend gives 0.0092); reported as a bug, to be enabled with the fix.
+     * error already does. (Before 40cc313 the step left out the dw term for θ: for V alone it gave σ_θ/θ = 0.0022 where
+     * the typed blend gives 0.0092.)
      */
-    @Disabled("LuminosityRadiusStep: θ's first-order error in the K7–M0 blend omits the moving weight (reported)")
     @Test
     void inTheBlendThetaErrorCarriesTheMovingWeight() {
         StarInput in = k7InBlend();
