@@ -190,4 +190,23 @@ class MonteCarloDeriverTest {
             assertEquals(want, MonteCarloDeriver.starSeed(run, key), "run " + run + ", key " + key);
         }
     }
+
+    @Test
+    void withEveryErrorSourceOffEveryDrawIsTheNominalStar() {
+        // a distribution of zero width has its one value as every percentile (definition of a percentile); the
+        // nominal values are those of the analytic chain with the same sources off
+        StarInput in = StarDeriverTest.solarTwinAt10pc();
+        StarDeriver first = new StarDeriver(DeriveSettings.defaults());
+        first.errorSources(0L);
+        StarResult a = first.derive(in, new StarResult());
+        double[] nominal = {a.distPc, a.teffK, a.lumLsun, a.radiusRsun, a.massMsun, a.loggCgs, a.angDiamMas};
+        MonteCarloDeriver mc = new MonteCarloDeriver(DeriveSettings.defaults(), 64, 3);
+        mc.errorSources(0L);
+        double[][] q = run(mc, in, 42L);
+        for (int k = 0; k < MonteCarloDeriver.NQ; k++) {
+            for (int i = 0; i < 3; i++) {
+                assertEquals(nominal[k], q[k][i], 1e-9 * Math.abs(nominal[k]), MonteCarloDeriver.QUANTITIES[k] + " " + i);
+            }
+        }
+    }
 }

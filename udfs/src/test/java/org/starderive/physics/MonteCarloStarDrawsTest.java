@@ -60,28 +60,40 @@ class MonteCarloStarDrawsTest {
         // ϖ/σ = 2, below distance_snr_min (5, README): no distance, hence no luminosity class, but a Teff from the
         // colours. Its draws must scatter every relation it uses (a star without a class blends the dwarf regimes):
         // with only the relations' scatter switched on, half the 16-84 % range equals the first-order error (a
-        // Gaussian's 16-84 % half-range is its σ: common practice), within 8 % as in ErrorSourceTest.
-        StarInput in = solarTwinAt1kpc(0.5);
+        // Gaussian's 16-84 % half-range is its σ: common practice), within 8 % as in ErrorSourceTest. Two stars: all
+        // the solar twin's bands, and only J and Ks (one dwarf relation, Casagrande et al. 2010 J-Ks).
+        StarInput jks = new StarInput().parallax(1.0, 0.5);
+        for (Band band : new Band[] {Band.J, Band.KS}) {
+            jks.magnitude(band, solarTwinAt1kpc(0.5).mag[band.ordinal()], 0.02);
+        }
         DeriveSettings s = DeriveSettings.defaults();
-        for (long mask : new long[] {-1L, 1L << ErrorSource.SCATTER}) {
-            StarDeriver first = new StarDeriver(s);
-            first.errorSources(mask);
-            StarResult b = first.derive(in, new StarResult());
-            assertEquals(StarResult.DistanceMethod.NONE, b.distMethod);
-            assertNull(b.lumClass);
-            assertTrue(b.teffErrK > 10, "the first-order Teff error: " + b.teffErrK);
-            MonteCarloDeriver mc = new MonteCarloDeriver(s, 4000, 9);
-            mc.errorSources(mask);
-            double[][] q = run(mc, in);
-            assertEquals(b.teffK, q[1][1], 0.1 * b.teffErrK, "median Teff, sources " + Long.toHexString(mask));
-            assertEquals(b.teffErrK, (q[1][2] - q[1][0]) / 2, 0.08 * b.teffErrK, "Teff spread, sources " + Long.toHexString(mask));
-            for (int k : new int[] {0, 2, 3, 4, 5}) {
-                assertTrue(Double.isNaN(q[k][0]) && Double.isNaN(q[k][1]) && Double.isNaN(q[k][2]),
-                        MonteCarloDeriver.QUANTITIES[k] + " needs a distance");
+        for (StarInput in : new StarInput[] {solarTwinAt1kpc(0.5), jks}) {
+            for (long mask : new long[] {-1L, 1L << ErrorSource.SCATTER}) {
+                StarDeriver first = new StarDeriver(s);
+                first.errorSources(mask);
+                StarResult b = first.derive(in, new StarResult());
+                String ctx = Long.bitCount(b.teffRelations) + " relations, sources " + Long.toHexString(mask);
+                assertEquals(StarResult.DistanceMethod.NONE, b.distMethod);
+                assertNull(b.lumClass);
+                if (in == jks) {
+                    assertEquals(1, Long.bitCount(b.teffRelations), "J-Ks star: " + ctx);
+                }
+                assertTrue(b.teffErrK > 10, "the first-order Teff error: " + b.teffErrK);
+                MonteCarloDeriver mc = new MonteCarloDeriver(s, 4000, 9);
+                mc.errorSources(mask);
+                double[][] q = run(mc, in);
+                assertEquals(b.teffK, q[1][1], 0.1 * b.teffErrK, "median Teff, " + ctx);
+                assertEquals(b.teffErrK, (q[1][2] - q[1][0]) / 2, 0.08 * b.teffErrK, "Teff spread, " + ctx);
+                for (int k : new int[] {0, 2, 3, 4, 5}) {
+                    assertTrue(Double.isNaN(q[k][0]) && Double.isNaN(q[k][1]) && Double.isNaN(q[k][2]),
+                            MonteCarloDeriver.QUANTITIES[k] + " needs a distance");
+                }
+                // the angular diameter does not: θ = 2 √(F_bol / σ_SB) / Teff², from the apparent bolometric flux
+                // (common practice); where the star has one, its draws spread as its first-order error says
+                if (!Double.isNaN(b.angDiamMas)) {
+                    assertEquals(b.angDiamErrMas, (q[6][2] - q[6][0]) / 2, 0.08 * b.angDiamErrMas, "θ spread, " + ctx);
+                }
             }
-            // the angular diameter does not: θ = 2 √(F_bol / σ_SB) / Teff², from the apparent bolometric flux (common
-            // practice); its draws spread as its first-order error says
-            assertEquals(b.angDiamErrMas, (q[6][2] - q[6][0]) / 2, 0.08 * b.angDiamErrMas, "θ spread, sources " + Long.toHexString(mask));
         }
     }
 }
