@@ -6,7 +6,12 @@ import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import java.math.BigDecimal;
+import java.math.BigInteger;
+import java.math.MathContext;
 import java.util.Arrays;
+import java.util.SplittableRandom;
+import org.apache.commons.rng.core.source64.SplitMix64;
 import org.junit.jupiter.api.Test;
 
 class MonteCarloDeriverTest {
@@ -54,6 +59,12 @@ class MonteCarloDeriverTest {
         assertEquals(a.teffErrK, (q[1][2] - q[1][0]) / 2, 0.1 * a.teffErrK, "Teff");
         assertEquals(a.lumErrLsun, (q[2][2] - q[2][0]) / 2, 0.1 * a.lumErrLsun, "L");
         assertEquals(a.radiusErrRsun, (q[3][2] - q[3][0]) / 2, 0.1 * a.radiusErrRsun, "R");
+        // and what is computed from them: mass (Eker et al. 2018), log g and the angular diameter 2R/d
+        assertEquals(a.massErrMsun, (q[4][2] - q[4][0]) / 2, 0.1 * a.massErrMsun, "M");
+        assertEquals(a.loggErrCgs, (q[5][2] - q[5][0]) / 2, 0.1 * a.loggErrCgs, "log g");
+        assertEquals(a.angDiamErrMas, (q[6][2] - q[6][0]) / 2, 0.1 * a.angDiamErrMas, "angular diameter");
+        assertEquals(a.loggCgs, q[5][1], 0.2 * a.loggErrCgs, "median log g");
+        assertEquals(a.angDiamMas, q[6][1], 0.2 * a.angDiamErrMas, "median angular diameter");
         assertEquals(a.teffK, q[1][1], 0.2 * a.teffErrK, "median Teff");
     }
 
@@ -147,6 +158,54 @@ class MonteCarloDeriverTest {
             org.apache.commons.rng.UniformRandomProvider got = MonteCarloDeriver.generator(seed);
             for (int k = 0; k < 16; k++) {
                 assertEquals(want.nextLong(), got.nextLong(), "seed " + seed + ", output " + k);
+            }
+        }
+    }
+
+    @Test
+    void starSeedIsOutputNumberRunSeedOfSplitMix64SeededWithTheStarKey() {
+        // SplitMix64 (Steele, Lea & Flood 2014, OOPSLA, "Fast splittable pseudorandom number generators"): the state
+        // advances by the odd "golden gamma", floor(2^64 / phi), and each output is the new state through the
+        // variant-13 finaliser. The documented seed, a SplitMix64 mix of run seed and star key, is the state
+        // key + runSeed * gamma finalised: output number runSeed (from 1) of a SplitMix64 seeded with the key.
+        // References: Commons RNG's SplitMix64 and the JDK's SplittableRandom (the same generator, its state advanced
+        // by the same gamma before each output), with gamma computed here from the golden ratio.
+        MathContext mc = new MathContext(60);
+        BigDecimal invPhi = BigDecimal.valueOf(5).sqrt(mc).subtract(BigDecimal.ONE).divide(BigDecimal.valueOf(2), mc);
+        long gamma = new BigDecimal(BigInteger.ONE.shiftLeft(64)).multiply(invPhi).toBigInteger().longValue();
+        assertEquals(1L, gamma & 1L, "the golden gamma is odd");
+        for (long key : new long[] {0L, 1L, 12345L, -1L, Long.MIN_VALUE, 0x5DEECE66DL}) {
+            SplitMix64 stream = new SplitMix64(key);
+            for (long run = 1; run <= 5; run++) {
+                assertEquals(stream.nextLong(), MonteCarloDeriver.starSeed(run, key), "run " + run + ", key " + key);
+            }
+        }
+        SplittableRandom r = new SplittableRandom(17);
+        for (int i = 0; i < 200; i++) {
+            long run = r.nextLong();
+            long key = r.nextLong();
+            long state = run * gamma + key; // arithmetic modulo 2^64, as the generator's
+            long want = new SplittableRandom(state - gamma).nextLong();
+            assertEquals(want, new SplitMix64(state - gamma).nextLong(), "the two references agree");
+            assertEquals(want, MonteCarloDeriver.starSeed(run, key), "run " + run + ", key " + key);
+        }
+    }
+
+    @Test
+    void withEveryErrorSourceOffEveryDrawIsTheNominalStar() {
+        // a distribution of zero width has its one value as every percentile (definition of a percentile); the
+        // nominal values are those of the analytic chain with the same sources off
+        StarInput in = StarDeriverTest.solarTwinAt10pc();
+        StarDeriver first = new StarDeriver(DeriveSettings.defaults());
+        first.errorSources(0L);
+        StarResult a = first.derive(in, new StarResult());
+        double[] nominal = {a.distPc, a.teffK, a.lumLsun, a.radiusRsun, a.massMsun, a.loggCgs, a.angDiamMas};
+        MonteCarloDeriver mc = new MonteCarloDeriver(DeriveSettings.defaults(), 64, 3);
+        mc.errorSources(0L);
+        double[][] q = run(mc, in, 42L);
+        for (int k = 0; k < MonteCarloDeriver.NQ; k++) {
+            for (int i = 0; i < 3; i++) {
+                assertEquals(nominal[k], q[k][i], 1e-9 * Math.abs(nominal[k]), MonteCarloDeriver.QUANTITIES[k] + " " + i);
             }
         }
     }

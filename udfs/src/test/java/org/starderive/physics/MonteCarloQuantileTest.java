@@ -55,4 +55,33 @@ class MonteCarloQuantileTest {
             assertEquals("Invalid Monte Carlo draws: " + bad + " (must be between 8 and 100000)", e.getMessage());
         }
     }
+
+    @Test
+    void probabilitiesLandingExactlyOnAnOrderStatisticReadOnlyTheDrawsThere() {
+        // (n + 1) p - 1 an exact integer: p = 1/(n + 1) is the smallest draw, p = n/(n + 1) the largest, p = k/(n + 1)
+        // the k-th (Hyndman & Fan 1996, type 6); reference Commons Math Percentile R_6. The arrays hold exactly n
+        // values, so a rule that reads one past the order statistic it lands on fails here.
+        SplittableRandom rnd = new SplittableRandom(20261203);
+        for (int n : new int[] {3, 7, 15, 31, 63}) {
+            double[] probs = {1.0 / (n + 1), 2.0 / (n + 1), (n - 1.0) / (n + 1), (double) n / (n + 1)};
+            for (int round = 0; round < 5; round++) {
+                double[] a = new double[n];
+                for (int i = 0; i < n; i++) {
+                    a[i] = rnd.nextGaussian() * 3 + 10;
+                }
+                Percentile ref = new Percentile().withEstimationType(Percentile.EstimationType.R_6);
+                ref.setData(a);
+                double[] sorted = a.clone();
+                Arrays.sort(sorted);
+                double[] q = new double[probs.length];
+                MonteCarloDeriver.selectQuantiles(a.clone(), n, probs, q);
+                for (int k = 0; k < probs.length; k++) {
+                    double expected = ref.evaluate(100 * probs[k]);
+                    String what = "n=" + n + " p=" + probs[k];
+                    assertEquals(expected, MonteCarloDeriver.quantile(sorted, n, probs[k]), 1e-12 * Math.abs(expected), what);
+                    assertEquals(expected, q[k], 1e-12 * Math.abs(expected), what + " (selection)");
+                }
+            }
+        }
+    }
 }
