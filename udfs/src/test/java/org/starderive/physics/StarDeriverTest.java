@@ -444,6 +444,41 @@ class StarDeriverTest {
         assertTrue(Double.isNaN(none.teffChi2));
     }
 
+    /** One Monte Carlo draw of {@code in} with deviates {@code z}, no relation offsets, class and log g as given. */
+    private static StarResult draw(StarDeriver d, StarInput in, double[] z, LuminosityClass cls, double logg) {
+        return d.deriveDraw(in, new StarResult(), Double.NaN, new double[d.enabledRelations().length], z, cls, logg);
+    }
+
+    @Test
+    void aDrawKeepsTheClassItIsGivenAndStartsFromItsLogg() {
+        // StarDeriver.deriveDraw and docs/uncertainties.md: draws keep the star's class and start the log g
+        // iteration at its log g; every other source is moved by z × σ
+        StarDeriver d = new StarDeriver(DeriveSettings.defaults());
+        double[] z = new double[ErrorSource.COUNT];
+        StarResult r = draw(d, solarTwinAt10pc(), z, LuminosityClass.EVOLVED, Double.NaN);
+        assertEquals(LuminosityClass.EVOLVED, r.lumClass);
+        assertEquals(Regime.GIANT, r.regime, r.teffFrom());
+        r = draw(d, ChainStepsTest.sunAt(0.05, 0.0005), z, LuminosityClass.MAIN_SEQUENCE, Double.NaN);
+        assertEquals(LuminosityClass.MAIN_SEQUENCE, r.lumClass, "kept although brighter than the main sequence");
+        assertEquals(Regime.FGK_DWARF, r.regime, r.teffFrom());
+        // a Gaia-band K dwarf without parallax: its Teff is the C21 BP−RP relation at the given log g
+        StarInput k = new StarInput().magnitude(Band.G, 9.5, 0.003).magnitude(Band.BP, 10.2, 0.003)
+                .magnitude(Band.RP, 8.6, 0.003).ebv(0, 0);
+        double x = 10.2 - 8.6;
+        r = draw(d, k, z, LuminosityClass.MAIN_SEQUENCE, 4.0);
+        assertEquals(teffC21BpRp(x, 4.0, 0), r.teffK, 1e-6);
+        // no class given: log g⊙ moved by z σ_logg, the σ_logg of the first-order path (its Teff error with only the
+        // log g source on is |∂Teff/∂log g| σ_logg); C21 is linear in log g
+        d.errorSources(1L << ErrorSource.LOGG);
+        double errK = d.derive(k, new StarResult()).teffErrK;
+        d.errorSources(-1L);
+        double slope = teffC21BpRp(x, 5, 0) - teffC21BpRp(x, 4, 0);
+        assertTrue(errK > 1, "log g error term " + errK);
+        z[ErrorSource.LOGG] = 1;
+        r = draw(d, k, z, null, Double.NaN);
+        assertEquals(teffC21BpRp(x, 4.438, 0) + Math.signum(slope) * errK, r.teffK, 0.0005 * Math.abs(slope));
+    }
+
     @Test
     void flagBitsAreUniqueAndStable() {
         java.util.Set<Integer> bits = new java.util.HashSet<>();
