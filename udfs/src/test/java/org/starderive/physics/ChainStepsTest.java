@@ -42,8 +42,14 @@ class ChainStepsTest {
 
     @Test
     void posteriorModeAndItsLaplaceWidthMatchTheMaximisedPublishedPosterior() {
-        double plx = 1.0;
-        double sig = 0.5;
+        // σ = 0.5 puts the mode at 1.5/ϖ, where the likelihood's own curvature vanishes (the width there is the prior's
+        // alone); σ = 0.25 checks the likelihood's term too
+        for (double sig : new double[] {0.5, 0.25}) {
+            checkModeAndLaplaceWidth(1.0, sig);
+        }
+    }
+
+    private static void checkModeAndLaplaceWidth(double plx, double sig) {
         double l = DeriveSettings.PRIOR_LENGTH_KPC_DEFAULT;
         StarResult r = new StarDeriver(DeriveSettings.builder().distanceSnrMin(0).posteriorPercentiles(false).build())
                 .derive(sunAt(plx, sig), new StarResult());
@@ -51,15 +57,15 @@ class ChainStepsTest {
         // the maximum found by a general-purpose optimiser (Commons Math Brent) on the published density
         double mode = new BrentOptimizer(1e-14, 1e-14).optimize(new MaxEval(10_000), GoalType.MAXIMIZE,
                 new UnivariateObjectiveFunction(x -> lnPost(x, plx, sig, l)), new SearchInterval(0.05, 20)).getPoint();
-        assertEquals(1000 * mode, r.distPc, 1e-6 * 1000 * mode);
+        assertEquals(1000 * mode, r.distPc, 1e-6 * 1000 * mode, "σ " + sig);
         // Laplace width: (−d² ln p / dr²)^(−1/2) at the mode, by a central finite difference here
         double h = 1e-4 * mode;
         double curv = (lnPost(mode + h, plx, sig, l) - 2 * lnPost(mode, plx, sig, l) + lnPost(mode - h, plx, sig, l)) / (h * h);
         double sr = 1 / Math.sqrt(-curv);
-        assertEquals(1000 * (mode - sr), r.distLoPc, 1e-4 * 1000 * mode);
-        assertEquals(1000 * (mode + sr), r.distHiPc, 1e-4 * 1000 * mode);
+        assertEquals(1000 * (mode - sr), r.distLoPc, 1e-4 * 1000 * mode, "σ " + sig);
+        assertEquals(1000 * (mode + sr), r.distHiPc, 1e-4 * 1000 * mode, "σ " + sig);
         // the distance modulus follows the mode: μ = 5 log10(d / 10 pc) (definition)
-        assertEquals(5 * Math.log10(1000 * mode / 10), r.distModulusMag, 1e-9);
+        assertEquals(5 * Math.log10(1000 * mode / 10), r.distModulusMag, 1e-9, "σ " + sig);
     }
 
     @Test

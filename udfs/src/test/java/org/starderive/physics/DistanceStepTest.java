@@ -67,6 +67,18 @@ class DistanceStepTest {
     }
 
     @Test
+    void theEdsdMethodUsesThePosteriorEvenForAPreciseParallax() {
+        // distance_method EDSD: always the posterior (DeriveSettings), here at ϖ/σ = 20, its percentiles against the
+        // published posterior integrated by Commons Math (ChainStepsTest), to the core's 0.3 % accuracy class
+        StarResult r = derive(DeriveSettings.builder().distanceMethod(DeriveSettings.DistanceMethod.EDSD).build(), sunAt(10, 0.5));
+        assertEquals(StarResult.DistanceMethod.EDSD_MEDIAN, r.distMethod);
+        double[] expected = ChainStepsTest.posteriorPercentilesPc(10, 0.5, DeriveSettings.PRIOR_LENGTH_KPC_DEFAULT);
+        assertEquals(expected[0], r.distLoPc, 3e-3 * expected[1]);
+        assertEquals(expected[1], r.distPc, 3e-3 * expected[1]);
+        assertEquals(expected[2], r.distHiPc, 3e-3 * expected[1]);
+    }
+
+    @Test
     void theForcedInverseParallaxGivesNoDistanceForANonPositiveParallaxAndNoUpperBoundBelowOneSigma() {
         DeriveSettings inverse = DeriveSettings.builder().distanceSnrMin(0)
                 .distanceMethod(DeriveSettings.DistanceMethod.INVERSE).build();
