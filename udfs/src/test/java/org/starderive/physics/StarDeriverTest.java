@@ -333,6 +333,152 @@ class StarDeriverTest {
         assertThrows(IllegalArgumentException.class, () -> DeriveSettings.builder().relations(java.util.List.of()).build());
     }
 
+    /** Casagrande et al. 2021 BP−RP, relations.md section 4 (typed here): Teff at colour x, log g g, [Fe/H] f. */
+    private static double teffC21BpRp(double x, double g, double f) {
+        return 7980.8845 - 4138.3457 * x + 1264.9366 * x * x - 130.4388 * x * x * x
+                + g * (285.8393 - 324.2196 * x + 106.8511 * x * x - 4.9825 * x * x * x)
+                + f * (4.5138 - 203.7774 * x + 126.6981 * x * x - 14.7442 * x * x * x) + 40.7376 * f * g * x;
+    }
+
+    @Test
+    void aSubsetOfRelationsIsAllThatIsUsed() {
+        // only C10 V−Ks enabled: θ = 5040 K / Teff = a0 + a1 X + a2 X² at [Fe/H] 0 (Casagrande et al. 2010, Table 4,
+        // relations.md section 2), X = (V−Ks)⊙ = 1.544
+        StarDeriver one = new StarDeriver(DeriveSettings.builder().relations(java.util.List.of("C10/V-Ks")).build());
+        StarResult r = one.derive(solarTwinAt10pc(), new StarResult());
+        assertEquals("C10/V-Ks", r.teffFrom());
+        double x = 1.544;
+        assertEquals(5040 / (0.5057 + 0.2600 * x - 0.0146 * x * x), r.teffK, 1e-6);
+        // one estimate has no chi-square (no degree of freedom)
+        assertTrue(Double.isNaN(r.teffChi2), "chi2 " + r.teffChi2);
+    }
+
+    @Test
+    void aGaiaDwarfsTeffIsTheGaiaRelationAtItsOwnLogg() {
+        // a K dwarf seen in G, BP, RP only, at 20 pc: the C21 BP−RP relation needs log g, which the chain iterates
+        // until it is the star's own log g = log10(G M / R²) (to 0.005 dex); [Fe/H] the default 0
+        StarInput in = new StarInput().parallax(50, 0.01).magnitude(Band.G, 9.5, 0.003)
+                .magnitude(Band.BP, 10.2, 0.003).magnitude(Band.RP, 8.6, 0.003).ebv(0, 0);
+        StarResult r = deriver.derive(in, out);
+        assertEquals(LuminosityClass.MAIN_SEQUENCE, r.lumClass);
+        assertEquals("C21/BP-RP/dwarf", r.teffFrom());
+        assertTrue(Math.abs(r.loggCgs - DerivedConstants.LOGG_SUN_CGS) > 0.1, "a log g unlike the Sun's: " + r.loggCgs);
+        double x = 10.2 - 8.6;
+        double slope = Math.abs(teffC21BpRp(x, 5, 0) - teffC21BpRp(x, 4, 0)); // K per dex, linear in log g
+        assertEquals(teffC21BpRp(x, r.loggCgs, 0), r.teffK, 0.005 * slope + 1e-6, "log g " + r.loggCgs);
+        // without a distance the Sun's log g is assumed (log g⊙ = 4.438, relations.md section 1)
+        in.hasParallax = false;
+        r = deriver.derive(in, out);
+        assertEquals(teffC21BpRp(x, 4.438, 0), r.teffK, 0.0005 * slope + 1e-6);
+    }
+
+    @Test
+    void aDeriveAfterADrawHasItsErrorsAgain() {
+        // a Monte Carlo draw gives values only; the same deriver's next star must carry its errors as a fresh one does
+        StarInput in = solarTwinAt10pc();
+        StarDeriver d = new StarDeriver(DeriveSettings.defaults());
+        d.deriveDraw(in, new StarResult(), Double.NaN, new double[d.enabledRelations().length],
+                new double[ErrorSource.COUNT], null, Double.NaN);
+        StarResult after = d.derive(in, new StarResult());
+        StarResult fresh = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
+        assertTrue(after.teffErrK > 0, "Teff error " + after.teffErrK);
+        assertEquals(fresh.teffErrK, after.teffErrK, 0);
+        assertEquals(fresh.lumErrLsun, after.lumErrLsun, 0);
+        assertEquals(fresh.massErrMsun, after.massErrMsun, 0);
+    }
+
+    @Test
+    void theDiameterCrossCheckFlagsBeyondItsThresholdOnlyForMeasuredV() {
+        // the twin at 100 pc (θ about 0.09 mas) with Ks 0.1 mag too bright. Kervella et al. 2004 (relations.md section 9):
+        // log θ = 0.0755 (V−K) + 0.5170 − 0.2 K, so σ_lnθ,SB = ln10 · hypot(0.0755 σ_V, 0.2755 σ_K) with the relation's
+        // 1 % scatter in quadrature; flagged when |ln(θ_SB/θ)| > k · hypot(σ_θ/θ, σ_lnθ,SB), k = diameter_disagree_sigma
+        StarInput in = sunAt100pc();
+        in.hasMag[Band.J.ordinal()] = false; // J−Ks would take part in the Teff: only the diameter test is under test
+        in.mag[Band.KS.ordinal()] -= 0.1;
+        StarResult r = deriver.derive(in, out);
+        double sb = Math.hypot(Math.log(10) * Math.hypot(0.0755 * 0.01, 0.2755 * 0.01), 0.01);
+        double k = Math.abs(Math.log(r.angDiamSbrMas / r.angDiamMas)) / Math.hypot(r.angDiamErrMas / r.angDiamMas, sb);
+        assertTrue(r.angDiamSbrMas < 1 && k > 0.5, "θ_SB " + r.angDiamSbrMas + ", k " + k);
+        StarResult below = new StarDeriver(DeriveSettings.builder().diameterDisagreeSigma(0.999 * k).build()).derive(in, new StarResult());
+        StarResult above = new StarDeriver(DeriveSettings.builder().diameterDisagreeSigma(1.001 * k).build()).derive(in, new StarResult());
+        assertTrue(below.has(DIAMETER_DISAGREE), "threshold just below " + k);
+        assertFalse(above.has(DIAMETER_DISAGREE), "threshold just above " + k);
+        // no Ks: no surface-brightness diameter, and nothing flagged
+        StarInput noKs = sunAt100pc();
+        noKs.hasMag[Band.KS.ordinal()] = false;
+        r = deriver.derive(noKs, out);
+        assertEquals(0L, r.flags, QualityFlag.names(r.flags).toString());
+        assertTrue(Double.isNaN(r.angDiamSbrMas));
+        // V from G: the relation is in Johnson V, so no cross-check (StarDeriver: "where V was measured")
+        StarInput gaia = ErrorSourceTest.stars().get(0);
+        r = deriver.derive(gaia, out);
+        assertTrue(r.has(V_FROM_G) && r.angDiamMas > 0, QualityFlag.names(r.flags).toString());
+        assertTrue(Double.isNaN(r.angDiamSbrMas) && !r.has(DIAMETER_DISAGREE));
+    }
+
+    private static StarInput sunAt100pc() {
+        StarInput in = solarTwinAt10pc();
+        for (Band b : Band.values()) {
+            in.mag[b.ordinal()] += 5;
+        }
+        in.parallax(10, 0.001);
+        return in;
+    }
+
+    @Test
+    void aSupergiantGetsTheGiantRelationsAndNoMainSequenceCheck() {
+        // the twin's colours at 20 kpc (log L above the Eker et al. 2018 main sequence): evolved, so its Teff comes
+        // from the giant relations (Regime table: GIANT) and no dwarf surface-brightness diameter is made (Kervella
+        // et al. 2004: dwarfs and subgiants only)
+        StarResult r = deriver.derive(ChainStepsTest.sunAt(0.05, 0.0005), out);
+        assertEquals(LuminosityClass.EVOLVED, r.lumClass);
+        assertEquals(Regime.GIANT, r.regime, r.teffFrom());
+        assertTrue(r.teffFrom().startsWith("GHB09/"), r.teffFrom());
+        assertTrue(Double.isNaN(r.angDiamSbrMas));
+        // no Teff at all: no regime, no relations, no chi-square
+        StarResult none = deriver.derive(new StarInput().parallax(10, 0.1).magnitude(Band.V, 15, 0.01)
+                .magnitude(Band.KS, 9, 0.01), new StarResult());
+        assertTrue(none.has(COLOUR_OUT_OF_RANGE));
+        assertNull(none.regime);
+        assertEquals(0L, none.teffRelations);
+        assertTrue(Double.isNaN(none.teffChi2));
+    }
+
+    /** One Monte Carlo draw of {@code in} with deviates {@code z}, no relation offsets, class and log g as given. */
+    private static StarResult draw(StarDeriver d, StarInput in, double[] z, LuminosityClass cls, double logg) {
+        return d.deriveDraw(in, new StarResult(), Double.NaN, new double[d.enabledRelations().length], z, cls, logg);
+    }
+
+    @Test
+    void aDrawKeepsTheClassItIsGivenAndStartsFromItsLogg() {
+        // StarDeriver.deriveDraw and docs/uncertainties.md: draws keep the star's class and start the log g
+        // iteration at its log g; every other source is moved by z × σ
+        StarDeriver d = new StarDeriver(DeriveSettings.defaults());
+        double[] z = new double[ErrorSource.COUNT];
+        StarResult r = draw(d, solarTwinAt10pc(), z, LuminosityClass.EVOLVED, Double.NaN);
+        assertEquals(LuminosityClass.EVOLVED, r.lumClass);
+        assertEquals(Regime.GIANT, r.regime, r.teffFrom());
+        r = draw(d, ChainStepsTest.sunAt(0.05, 0.0005), z, LuminosityClass.MAIN_SEQUENCE, Double.NaN);
+        assertEquals(LuminosityClass.MAIN_SEQUENCE, r.lumClass, "kept although brighter than the main sequence");
+        assertEquals(Regime.FGK_DWARF, r.regime, r.teffFrom());
+        // a Gaia-band K dwarf without parallax: its Teff is the C21 BP−RP relation at the given log g
+        StarInput k = new StarInput().magnitude(Band.G, 9.5, 0.003).magnitude(Band.BP, 10.2, 0.003)
+                .magnitude(Band.RP, 8.6, 0.003).ebv(0, 0);
+        double x = 10.2 - 8.6;
+        r = draw(d, k, z, LuminosityClass.MAIN_SEQUENCE, 4.0);
+        assertEquals(teffC21BpRp(x, 4.0, 0), r.teffK, 1e-6);
+        // no class given: log g⊙ moved by z σ_logg, the σ_logg of the first-order path (its Teff error with only the
+        // log g source on is |∂Teff/∂log g| σ_logg); C21 is linear in log g
+        d.errorSources(1L << ErrorSource.LOGG);
+        double errK = d.derive(k, new StarResult()).teffErrK;
+        d.errorSources(-1L);
+        double slope = teffC21BpRp(x, 5, 0) - teffC21BpRp(x, 4, 0);
+        assertTrue(errK > 1, "log g error term " + errK);
+        z[ErrorSource.LOGG] = 1;
+        r = draw(d, k, z, null, Double.NaN);
+        assertEquals(teffC21BpRp(x, 4.438, 0) + Math.signum(slope) * errK, r.teffK, 0.0005 * Math.abs(slope));
+    }
+
     @Test
     void flagBitsAreUniqueAndStable() {
         java.util.Set<Integer> bits = new java.util.HashSet<>();
