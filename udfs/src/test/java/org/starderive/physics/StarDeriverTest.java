@@ -150,9 +150,11 @@ class StarDeriverTest {
         StarResult r = new StarDeriver(DeriveSettings.builder().distanceSnrMin(0).build()).derive(in, out);
         assertTrue(r.has(PARALLAX_NONPOSITIVE) && r.has(PARALLAX_LOW_SNR));
         assertTrue(r.distPc > 0);
-        // with the inverse parallax forced there is no distance for a negative parallax
-        StarResult inv = new StarDeriver(DeriveSettings.builder().distanceMethod(DeriveSettings.DistanceMethod.INVERSE).build())
-                .derive(in, new StarResult());
+        // with the inverse parallax forced (and no S/N threshold withholding it first) there is no distance for a
+        // negative parallax
+        StarResult inv = new StarDeriver(DeriveSettings.builder().distanceMethod(DeriveSettings.DistanceMethod.INVERSE)
+                .distanceSnrMin(0).build()).derive(in, new StarResult());
+        assertFalse(inv.has(DISTANCE_WITHHELD), "the inverse was tried, not withheld");
         assertTrue(Double.isNaN(inv.distPc));
         assertTrue(inv.has(PARALLAX_NONPOSITIVE));
     }
