@@ -56,6 +56,14 @@ class TeffBlendTest {
         return new TeffBlend(DeriveSettings.defaults(), s, all, IntStream.range(0, all.length).toArray());
     }
 
+    /** A new star's main-sequence blend at log g {@code logg} (no log g error). */
+    private static TeffBlend blended(StarState s, double logg) {
+        TeffBlend b = blend(s);
+        b.newStar();
+        b.estimate(LuminosityClass.MAIN_SEQUENCE, logg, 0.0);
+        return b;
+    }
+
     /**
      * The typed blend of the FGK relations {@code fgk} (their inverse-variance weights held at the star's values, as
      * the first-order rule states) with one other regime's relation {@code other}, weighted by {@code hot} ? the hot
@@ -119,9 +127,7 @@ class TeffBlendTest {
     @Test
     void k7DwarfBlendsMannAndCasagrandeWithTheMovingWeight() {
         StarState s = vjk(2.40, 0.65);
-        TeffBlend b = blend(s);
-        b.newStar();
-        b.estimate(LuminosityClass.MAIN_SEQUENCE, 4.6, 0.0);
+        TeffBlend b = blended(s, 4.6);
         double tm = TeffEstimatorTest.M15_VJ.t().teffK(s.m0, 0, 4.6);
         assertTrue(tm > 4150 && tm < 4250, "inside the blend zone: " + tm);
         assertBlend(b, C10_VJK, TeffEstimatorTest.M15_VJ, false, s, 4.6);
@@ -147,9 +153,7 @@ class TeffBlendTest {
             + "against the ErrorSource table (independent between relations); here 91.3 K instead of 80.0 K")
     void blendedScatterAddsTheIndependentRelationsInQuadrature() {
         StarState s = vjk(2.40, 0.65);
-        TeffBlend b = blend(s);
-        b.newStar();
-        b.estimate(LuminosityClass.MAIN_SEQUENCE, 4.6, 0.0);
+        TeffBlend b = blended(s, 4.6);
         double[] w = TeffEstimatorTest.weights(C10_VJK, s, 4.6);
         double sw = Arrays.stream(w).sum();
         double tf = TeffEstimatorTest.weightedMean(C10_VJK, s, 4.6);
@@ -174,9 +178,7 @@ class TeffBlendTest {
         s.sEbv = 0.01;
         s.feh = 0.1;
         s.fehMeasured = true;
-        TeffBlend b = blend(s);
-        b.newStar();
-        b.estimate(LuminosityClass.MAIN_SEQUENCE, 4.2, 0.0);
+        TeffBlend b = blended(s, 4.2);
         assertBlend(b, List.of(TeffEstimatorTest.C10_BV), F96_BV, true, s, 4.2);
         assertEquals(Regime.HOT, b.regime);
         assertEquals(1, b.count);
@@ -275,9 +277,7 @@ class TeffBlendTest {
     void noUsableColourGivesNoTeff() {
         StarState s = emptyState();
         band(s, Band.J, 9.0, 0.02, 0.87); // one band: no colour
-        TeffBlend b = blend(s);
-        b.newStar();
-        b.estimate(LuminosityClass.MAIN_SEQUENCE, 4.4, 0.0);
+        TeffBlend b = blended(s, 4.4);
         assertTrue(Double.isNaN(b.mean) && Double.isNaN(b.err) && Double.isNaN(b.chi2()));
         assertNull(b.regime);
         assertEquals(0, b.count);
@@ -297,9 +297,7 @@ class TeffBlendTest {
         band(s, Band.V, 6.0, 0.01, 3.1);
         band(s, Band.IC, 5.29, 0.01, 1.8);
         s.sEbv = 0.01;
-        TeffBlend b = blend(s);
-        b.newStar();
-        b.estimate(LuminosityClass.MAIN_SEQUENCE, 4.4, 0.0);
+        TeffBlend b = blended(s, 4.4);
         assertEquals(TeffEstimatorTest.weightedMean(List.of(TeffEstimatorTest.C10_VI), s, 4.4), b.mean, 1e-6);
         assertTrue(b.boundBroken);
         // B−V 1.29 + 1.9σ: inside the 2σ margin, no bound
