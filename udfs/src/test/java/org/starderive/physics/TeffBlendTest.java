@@ -273,6 +273,40 @@ class TeffBlendTest {
         assertEquals(bits("C10/B-V", "F96/B-V"), b.relationMask);
     }
 
+    /**
+     * An evolved star takes the giant relations (González Hernández &amp; Bonifacio 2009, Table 5: V−J 1.0–2.4, V−Ks
+     * 1.1–3.4, J−Ks 0.1–0.9; no zero point given) and is never blended with the M-dwarf relations, though its V−J
+     * 2.35 gives 4256 K by Mann et al. 2015; with only a colour outside every giant range (J−Ks 0.08) the dwarf
+     * relation is used and the regime is the dwarfs'.
+     */
+    @Test
+    void evolvedStarTakesTheGiantRelationsAndNoMDwarfWeight() {
+        StarState s = vjk(2.35, 0.65);
+        TeffBlend b = blend(s);
+        b.newStar();
+        b.estimateEvolved();
+        List<Rel> giant = List.of(
+                TeffEstimatorTest.theta("GHB09/", Band.V, Band.J, new double[] {0.4629, 0.4124, -0.0417, -0.0012, 0.0094, 0.0013}, 18, 0),
+                TeffEstimatorTest.theta("GHB09/", Band.V, Band.KS, new double[] {0.5293, 0.2489, -0.0119, -0.0042, 0.0135, 0.0010}, 23, 0),
+                TeffEstimatorTest.theta("GHB09/", Band.J, Band.KS, new double[] {0.6517, 0.6312, 0.0168, -0.0381, 0.0256, 0.0013}, 94, 0));
+        assertEquals(TeffEstimatorTest.weightedMean(giant, s, 2.5), b.mean, 1e-6);
+        assertEquals(Regime.GIANT, b.regime);
+        assertEquals(0.0, b.wM, 0.0);
+        assertEquals(bits(giant), b.relationMask);
+        assertEquals(0.0, b.c[ErrorSource.BLEND], 0.0);
+        // J−Ks 0.08 only, 0.02 below the giant range (4σ): the Casagrande et al. 2010 dwarf relation
+        StarState blue = emptyState();
+        band(blue, Band.J, 8.08, 0.003, 0.87);
+        band(blue, Band.KS, 8.0, 0.003, 0.35);
+        b = blend(blue);
+        b.newStar();
+        b.estimateEvolved();
+        assertEquals(TeffEstimatorTest.C10_JK.t().teffK(blue.m0, 0, 2.5), b.mean, 1e-6);
+        assertEquals(Regime.FGK_DWARF, b.regime);
+        assertEquals(bits("C10/J-Ks"), b.relationMask);
+        assertTrue(b.anyColour && !b.boundBroken);
+    }
+
     @Test
     void noUsableColourGivesNoTeff() {
         StarState s = emptyState();

@@ -40,7 +40,12 @@ class TeffEstimatorTest {
      * a5 [Fe/H]²; zero point 15 K (same paper).
      */
     static Rel c10(Band blue, Band red, double[] a, double sigmaK) {
-        return new Rel("C10/" + blue.label() + "-" + red.label(), blue, red, sigmaK, 15.0, (m0, f, g) -> {
+        return theta("C10/", blue, red, a, sigmaK, 15.0);
+    }
+
+    /** The θ form of Casagrande et al. 2010 and González Hernández &amp; Bonifacio 2009 (the same form). */
+    static Rel theta(String prefix, Band blue, Band red, double[] a, double sigmaK, double zpK) {
+        return new Rel(prefix + blue.label() + "-" + red.label(), blue, red, sigmaK, zpK, (m0, f, g) -> {
             double x = m(m0, blue) - m(m0, red);
             return 5040.0 / (a[0] + a[1] * x + a[2] * x * x + a[3] * x * f + a[4] * f + a[5] * f * f);
         });
