@@ -339,6 +339,13 @@ class TeffBlendTest {
         b.newStar();
         b.estimate(LuminosityClass.MAIN_SEQUENCE, 4.4, 0.0);
         assertFalse(b.boundBroken);
+        // the blue side: V−I_C 0.30, bluer than the edge 0.46 (a bound near 7000 K), B−V 0.90 (about 5000 K)
+        s.m0[Band.B.ordinal()] = 6.9;
+        s.m0[Band.IC.ordinal()] = 5.7;
+        b.newStar();
+        b.estimate(LuminosityClass.MAIN_SEQUENCE, 4.4, 0.0);
+        assertEquals(TeffEstimatorTest.weightedMean(List.of(TeffEstimatorTest.C10_BV), s, 4.4), b.mean, 1e-6);
+        assertTrue(b.boundBroken);
     }
 
     /**
@@ -357,6 +364,7 @@ class TeffBlendTest {
         b.estimateEvolved();
         double nominal = b.mean;
         assertEquals(Regime.GIANT, b.regime);
+        assertTrue(b.usesLogg);
         assertEquals(TeffEstimatorTest.C21_BPRP.t().teffK(s.m0, 0, d.giantLoggPrior()), nominal, 1e-6);
         assertEquals(TeffEstimatorTest.partials(List.of(TeffEstimatorTest.C21_BPRP), s, d.giantLoggPrior(),
                 d.giantLoggPriorErr())[0][ErrorSource.LOGG], b.c[ErrorSource.LOGG], 1e-5);
