@@ -316,7 +316,35 @@ class TeffBlendTest {
         assertNull(b.regime);
         assertEquals(0, b.count);
         assertEquals(0L, b.relationMask);
-        assertFalse(b.anyColour);
+        assertFalse(b.anyColour || b.extrapolated || b.boundBroken);
+        assertEquals(0.0, b.wM, 0.0);
+    }
+
+    /**
+     * Where only one regime's relations give a value inside a blend zone, that value is used alone (Regime): V−I_C 1.55
+     * gives 4167 K by Mann et al. 2015 (plain form) and lies beyond the Casagrande et al. 2010 edge 1.47. The Mann
+     * estimate takes the whole weight, which then does not move with it: its contributions are the Mann relation's own.
+     */
+    @Test
+    void aLoneMDwarfEstimateInTheBlendZoneIsUsedAlone() {
+        StarState s = emptyState();
+        band(s, Band.V, 9.55, 0.01, 3.1);
+        band(s, Band.IC, 8.0, 0.01, 1.8);
+        s.sEbv = 0.01;
+        TeffBlend b = blended(s, 4.6);
+        Rel mannVi = TeffEstimatorTest.m15(Band.V, Band.IC, "", new double[] {2.455, -1.5701, 0.6891, -0.1500, 0.01254, 0, 0}, 53);
+        double tm = mannVi.t().teffK(s.m0, 0, 4.6);
+        assertTrue(tm > 4100 && tm < 4300, "inside the blend zone: " + tm);
+        assertEquals(tm, b.mean, 1e-6);
+        assertEquals(1.0, b.wM, 0.0);
+        assertEquals(Regime.M_DWARF, b.regime);
+        assertEquals(bits("M15/V-Ic"), b.relationMask);
+        double[] g = TeffEstimatorTest.partials(List.of(mannVi), s, 4.6, 0)[0];
+        for (int q = 0; q <= ErrorSource.FEH; q++) {
+            assertEquals(g[q], b.c[q], 1e-5, "contribution of " + ErrorSource.name(q));
+        }
+        assertEquals(mannVi.sigmaK(), b.c[ErrorSource.SCATTER], 1e-9);
+        assertEquals(0.0, b.c[ErrorSource.BLEND], 0.0);
     }
 
     /**
