@@ -11,7 +11,6 @@ import static org.starderive.physics.TeffEstimatorTest.emptyState;
 import java.util.Arrays;
 import java.util.List;
 import java.util.stream.IntStream;
-import org.junit.jupiter.api.Disabled;
 import org.junit.jupiter.api.Test;
 import org.starderive.physics.TeffEstimatorTest.Rel;
 
@@ -149,9 +148,8 @@ class TeffBlendTest {
      * (1 − w_M) for the FGK mean, w_M + dw_M/dT (T_M − T_F) for the Mann one.
      */
     @Test
-    @Disabled("bug: TeffBlend adds the FGK and M-dwarf scatter contributions linearly (fully correlated), "
-            + "against the ErrorSource table (independent between relations); here 91.3 K instead of 80.0 K")
     void blendedScatterAddsTheIndependentRelationsInQuadrature() {
+        // (before 40cc313 both went into one source, added linearly: 91.3 K here instead of 80.0 K)
         StarState s = vjk(2.40, 0.65);
         TeffBlend b = blended(s, 4.6);
         double[] w = TeffEstimatorTest.weights(C10_VJK, s, 4.6);
@@ -159,11 +157,16 @@ class TeffBlendTest {
         double tf = TeffEstimatorTest.weightedMean(C10_VJK, s, 4.6);
         double tm = TeffEstimatorTest.M15_VJ.t().teffK(s.m0, 0, 4.6);
         double wm = mWeight(tm);
-        double var = Math.pow((wm - (tm - tf) / 200) * TeffEstimatorTest.M15_VJ.sigmaK(), 2);
+        double mannPart = (wm - (tm - tf) / 200) * TeffEstimatorTest.M15_VJ.sigmaK();
+        double fgkVar = 0;
         for (int i = 0; i < w.length; i++) {
-            var += Math.pow((1 - wm) * w[i] / sw * C10_VJK.get(i).sigmaK(), 2);
+            fgkVar += Math.pow((1 - wm) * w[i] / sw * C10_VJK.get(i).sigmaK(), 2);
         }
-        assertEquals(Math.sqrt(var), Math.abs(b.c[ErrorSource.SCATTER]), 1e-6);
+        // each regime's scatter is a source of its own, so the two add in quadrature wherever errors are combined
+        assertEquals(Math.abs(mannPart), Math.abs(b.c[ErrorSource.SCATTER_M]), 1e-6, "Mann 2015 scatter");
+        assertEquals(Math.sqrt(fgkVar), Math.abs(b.c[ErrorSource.SCATTER]), 1e-6, "C10 scatter");
+        assertEquals(80.0, Math.hypot(b.c[ErrorSource.SCATTER], b.c[ErrorSource.SCATTER_M]), 0.05,
+                "the two in quadrature (80.0 K from the typed relations)");
     }
 
     /**
@@ -343,7 +346,8 @@ class TeffBlendTest {
         for (int q = 0; q <= ErrorSource.FEH; q++) {
             assertEquals(g[q], b.c[q], 1e-5, "contribution of " + ErrorSource.name(q));
         }
-        assertEquals(mannVi.sigmaK(), b.c[ErrorSource.SCATTER], 1e-9);
+        assertEquals(mannVi.sigmaK(), b.c[ErrorSource.SCATTER_M], 1e-9);
+        assertEquals(0.0, b.c[ErrorSource.SCATTER], 0.0);
         assertEquals(0.0, b.c[ErrorSource.BLEND], 0.0);
     }
 
