@@ -357,12 +357,13 @@ class LuminosityRadiusStepTest {
      * (the typed f by central difference over ±1 K at the star's weight; σ_Teff with only this source on), plus 1e-5:
      * Teff's own first-order error, this step's input, differs from central differences of the derived Teff by up to
      * 1.2 % in the blend (TeffBlend, upstream), which is not 2 % of the term where the direct and the Teff-driven parts
-     * nearly cancel (V in M_bol of {@link #k7Brighter} 0.4: 0.010 − 0.008 mag).
+     * nearly cancel (V in M_bol of {@link #k7Brighter} 0.4: 0.010 − 0.008 mag). f reads Teff and the two weights of x.
      */
-    private static void assertTermClose(StarInput in, ObjDoubleConsumer<StarInput> shift, double sigma, StarResult r,
-                                        ToDoubleFunction<StarResult> f, double actual, String what) {
+    static void assertTermClose(StarInput in, ObjDoubleConsumer<StarInput> shift, double sigma, StarResult r,
+                                ToDoubleFunction<StarResult> f, double actual, String what) {
         StarResult at = new StarResult();
         at.radiusMksWeight = r.radiusMksWeight;
+        at.massMksWeight = r.massMksWeight;
         at.teffK = r.teffK + 1;
         double up = f.applyAsDouble(at);
         at.teffK = r.teffK - 1;
