@@ -361,15 +361,39 @@ class LuminosityRadiusStepTest {
      */
     static void assertTermClose(StarInput in, ObjDoubleConsumer<StarInput> shift, double sigma, StarResult r,
                                 ToDoubleFunction<StarResult> f, double actual, String what) {
+        double expected = term(in, shift, sigma, f);
+        assertEquals(expected, actual, 0.02 * (expected + teffPart(r, f)) + 1e-5, what);
+    }
+
+    /** |∂f/∂Teff| σ_Teff of result r: the typed f by central difference over ±1 K at r's weights. */
+    static double teffPart(StarResult r, ToDoubleFunction<StarResult> f) {
         StarResult at = new StarResult();
         at.radiusMksWeight = r.radiusMksWeight;
         at.massMksWeight = r.massMksWeight;
         at.teffK = r.teffK + 1;
         double up = f.applyAsDouble(at);
         at.teffK = r.teffK - 1;
-        double teffPart = Math.abs(up - f.applyAsDouble(at)) / 2 * r.teffErrK;
-        double expected = term(in, shift, sigma, f);
-        assertEquals(expected, actual, 0.02 * (expected + teffPart) + 1e-5, what);
+        return Math.abs(up - f.applyAsDouble(at)) / 2 * r.teffErrK;
+    }
+
+    /**
+     * The blend source alone in a blend star with one route only: Teff moves by the Teff regimes' spread (TeffBlend,
+     * upstream: read as σ_Teff), and the routes have no disagreement to add, so M_bol, ln R and ln θ move through Teff
+     * alone (on the radius route R and θ = 2R/d not at all).
+     */
+    @Test
+    void withOneRouteOnlyTheBlendSourceMovesLRAndThetaThroughTeffAlone() {
+        for (StarInput in : new StarInput[] {blendStarWithoutV(), k7Brighter(0.4)}) {
+            StarResult r = onlySource(in, ErrorSource.BLEND);
+            String what = "w " + r.radiusMksWeight;
+            assertTrue(r.teffErrK > 1, what + ": the Teff regimes disagree, σ_Teff " + r.teffErrK);
+            ToDoubleFunction<StarResult> mbol = x -> blendMbol(in, x);
+            assertEquals(teffPart(r, mbol), r.mbolErrMag, 1e-6 * r.mbolErrMag + 1e-9, what + ": M_bol");
+            double lnR = teffPart(r, x -> Math.log(radiusRsun(lumLsun(mbol.applyAsDouble(x)), x.teffK)));
+            assertEquals(lnR, r.radiusErrRsun / r.radiusRsun, 1e-6 * lnR + 1e-9, what + ": ln R");
+            double lnTheta = teffPart(r, x -> blendLnTheta(in, x));
+            assertEquals(lnTheta, r.angDiamErrMas / r.angDiamMas, 1e-6 * lnTheta + 1e-9, what + ": ln θ");
+        }
     }
 
     /**

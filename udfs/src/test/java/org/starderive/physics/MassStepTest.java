@@ -238,6 +238,22 @@ class MassStepTest {
         assertMassErrors(r, 0.021, 0, "Mann scatter below Eker's range");
     }
 
+    @Test
+    void aBlendStarFainterThanEkersRangeTakesMann2019sMassAlone() {
+        // the K7 blend star 5.6 mag fainter in every band (same colours and Teff weight): M_Ks 10.49 lies inside Mann
+        // et al. 2019 (4.0–11.0), its L below Eker et al. 2018's lowest mass (log L −2.49), so Mann's mass is used alone
+        StarInput in = LuminosityRadiusStepTest.k7Brighter(-5.6);
+        StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
+        double mKs = 6.40 + 5.6 - mu(50);
+        assertEquals(mKs, r.absMag[Band.KS.ordinal()], 1e-9);
+        assertTrue(Math.log10(r.lumLsun) < 2.028 * Math.log10(0.179) - 0.976, "log L " + Math.log10(r.lumLsun));
+        assertEquals(1.0, r.massMksWeight, 0.0);
+        double mass = Math.pow(10, MannRelationsTest.logMassFeh(mKs, 0.0));
+        assertEquals(mass, r.massMsun, 1e-9 * mass);
+        assertDensityAndLogg(r, mass, "faint K7");
+        assertMassErrors(onlySource(in, ErrorSource.MASS_REL), 0.021, 0, "faint K7, Mann scatter");
+    }
+
     /**
      * One Monte Carlo draw with the relations' scatter at +1σ (StarDeriver.deriveDraw: every source moves by z σ):
      * in the K7 blend one z moves both mass relations, as the first-order path adds their scatters linearly
