@@ -87,6 +87,27 @@ class LuminosityRadiusStepTest {
         return in.magnitude(Band.B, in.mag[Band.V.ordinal()] + 1.2, 0.01);
     }
 
+    /**
+     * A star in the K7–M0 blend without V or G: BP−RP 1.75 puts the Mann BP−RP temperature in the blend (Regime:
+     * 4100–4300 K), M_Ks 5.6 lies inside Mann et al. 2015's range. J−Ks 0.85 lies beyond Casagrande et al. 2010's
+     * J−Ks range (0.07–0.80), not on its edge, where a J error would switch that relation on and off.
+     */
+    static StarInput blendStarWithoutV() {
+        return new StarInput().parallax(50, 0.1).magnitude(Band.BP, 10.75, 0.01).magnitude(Band.RP, 9, 0.01)
+                .magnitude(Band.J, 7.95, 0.02).magnitude(Band.H, 7.3, 0.02).magnitude(Band.KS, 7.1, 0.02)
+                .ebv(0, 0.01).feh(0, 0.1);
+    }
+
+    /** {@link #k7InBlend} with every magnitude brighter by {@code dm}: the same colours and Teff, M_Ks 4.895 − dm
+     * (Ks 6.40 at 20 pc). */
+    static StarInput k7Brighter(double dm) {
+        StarInput in = k7InBlend();
+        for (int b = 0; b < Band.COUNT; b++) {
+            in.mag[b] -= in.hasMag[b] ? dm : 0;
+        }
+        return in;
+    }
+
     /** The star derived with only error source {@code j} on. */
     static StarResult onlySource(StarInput in, int j) {
         StarDeriver d = new StarDeriver(DeriveSettings.defaults());
@@ -122,11 +143,17 @@ class LuminosityRadiusStepTest {
 
     /**
      * M_bol (BC scale) of a star without extinction in the K7–M0 blend: w M_bol(radius route) + (1 − w) M_bol(BC route),
-     * at Teff and radius-route weight w, from the star's current inputs.
+     * at Teff and radius-route weight w, from the star's current inputs. A route of weight 0 is left out (a star
+     * without V has no BC route; one outside Mann et al. 2015's M_Ks range has no radius route).
      */
     static double blendMbol(StarInput in, double w, double teffK) {
         double mbolBc = in.mag[Band.V.ordinal()] + BolometricCorrectionTest.typedBcV(teffK) - mu(in.parallaxMas);
-        return w * mbolOfRadius(mannRadius(in), teffK) + (1 - w) * mbolBc;
+        return weighted(w, mbolOfRadius(mannRadius(in), teffK), mbolBc);
+    }
+
+    /** w a + (1 − w) b, where a part of weight 0 is left out (it may be NaN: that route does not exist). */
+    static double weighted(double w, double a, double b) {
+        return (w == 0 ? 0 : w * a) + (w == 1 ? 0 : (1 - w) * b);
     }
 
     /** {@link #blendMbol} at the derived star's Teff and weight. */
@@ -136,8 +163,8 @@ class LuminosityRadiusStepTest {
 
     /** ln θ of the same star: w ln(2R/d) + (1 − w) ln θ(bolometric flux), blended in log. */
     static double blendLnTheta(StarInput in, double w, double teffK) {
-        return w * Math.log(thetaMas(mannRadius(in), 1000 / in.parallaxMas))
-                + (1 - w) * Math.log(thetaFromFluxMas(in.mag[Band.V.ordinal()], teffK));
+        return weighted(w, Math.log(thetaMas(mannRadius(in), 1000 / in.parallaxMas)),
+                Math.log(thetaFromFluxMas(in.mag[Band.V.ordinal()], teffK)));
     }
 
     static double blendLnTheta(StarInput in, StarResult x) {
@@ -209,9 +236,7 @@ class LuminosityRadiusStepTest {
     void anMDwarfWithoutVInTheBlendZoneTakesTheRadiusRouteAlone() {
         // BP−RP 1.75 puts the Mann BP−RP temperature in the K7–M0 blend (Regime: 4100–4300 K); without V (nor G)
         // there is no BC route, so R and L are the radius route's alone whatever the Teff weight
-        StarInput in = new StarInput().parallax(50, 0.1).magnitude(Band.BP, 10.75, 0.01).magnitude(Band.RP, 9, 0.01)
-                .magnitude(Band.J, 7.9, 0.02).magnitude(Band.H, 7.3, 0.02).magnitude(Band.KS, 7.1, 0.02)
-                .ebv(0, 0.01).feh(0, 0.1);
+        StarInput in = blendStarWithoutV();
         StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
         assertTrue(r.teffFrom().contains("M15/") && r.teffFrom().contains("C21/"), "a blend: " + r.teffFrom());
         assertEquals(1.0, r.radiusMksWeight, 0.0);
@@ -263,32 +288,112 @@ class LuminosityRadiusStepTest {
     }
 
     /**
-     * In the blend every source moves Teff, the weight w and both routes: the first-order errors of M_bol and ln R,
-     * one source at a time, against central differences of the typed blend; ln θ for Ks, which moves neither Teff nor
-     * w (the sources that move w: {@link #inTheBlendThetaErrorCarriesTheMovingWeight}).
+     * In the blend every source moves Teff, the weight w and both routes: the first-order errors of M_bol, ln R and
+     * ln θ, one source at a time, against central differences of the typed blend. θ is blended in log with the weight
+     * w of the radius route, and w moves with every source of the Mann temperature (V, I_C, J, [Fe/H] here):
+     * d ln θ = w d ln θ_R + (1 − w) d ln θ_BC + (ln θ_R − ln θ_BC) dw, as M_bol's error already does. (Before 40cc313
+     * the step left out the dw term for θ: for V alone it gave σ_θ/θ = 0.0022 where the typed blend gives 0.0092.)
      */
     @Test
     void inTheBlendEachInputsErrorMatchesCentralDifferencesOfTheTypedBlend() {
-        StarInput in = k7InBlend();
-        ToDoubleFunction<StarResult> lnR = x -> Math.log(radiusRsun(lumLsun(blendMbol(in, x)), x.teffK));
-        for (Band band : new Band[] {Band.B, Band.V, Band.IC, Band.J, Band.KS}) {
-            StarResult r = onlySource(in, band.ordinal());
-            String what = "band " + band;
-            assertClose(bandTerm(in, band, x -> blendMbol(in, x)), r.mbolErrMag, what + " M_bol");
-            assertClose(bandTerm(in, band, lnR), r.radiusErrRsun / r.radiusRsun, what + " ln R");
+        assertEachInputMatchesTypedBlend(k7InBlend(), "K7");
+    }
+
+    /**
+     * A blend star may lie inside one route's range only: without V there is no BC route (w = 1 while the Teff weight
+     * of the M-dwarf regime is inside (0, 1) and moves with BP, RP, J), and at M_Ks 4.49, brighter than Mann et al.
+     * 2015's 4.6, there is no radius route (w = 0 while the Teff weight moves). The absent route must not enter through
+     * the moving weight: L, R and θ are the present route's, and each source's error that route's central difference.
+     */
+    @Test
+    void aBlendStarInsideOneRoutesRangeOnlyTakesThatRouteWithItsErrors() {
+        StarInput noV = blendStarWithoutV();
+        StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(noV, new StarResult());
+        // the mass step's M-dwarf weight is the Teff weight (both mass relations apply: MassStepTest)
+        assertTrue(r.massMksWeight > 0.1 && r.massMksWeight < 0.9, "a blend: " + r.massMksWeight);
+        assertEquals(1.0, r.radiusMksWeight, 0.0);
+        assertEachInputMatchesTypedBlend(noV, "no V");
+
+        StarInput bright = k7Brighter(0.4);
+        r = new StarDeriver(DeriveSettings.defaults()).derive(bright, new StarResult());
+        assertEquals(6.40 - 0.4 - mu(50), r.absMag[Band.KS.ordinal()], 1e-9);
+        assertTrue(r.massMksWeight > 0.1 && r.massMksWeight < 0.9, "a blend: " + r.massMksWeight);
+        assertEquals(0.0, r.radiusMksWeight, 0.0, "Mann et al. 2015: valid for 4.6 < M_Ks < 9.8");
+        double v0 = bright.mag[Band.V.ordinal()];
+        double lum = lumLsun(v0 + BolometricCorrectionTest.typedBcV(r.teffK) - mu(bright.parallaxMas));
+        assertEquals(lum, r.lumLsun, 1e-9 * lum);
+        assertEquals(radiusRsun(lum, r.teffK), r.radiusRsun, 1e-9 * r.radiusRsun);
+        assertEquals(thetaFromFluxMas(v0, r.teffK), r.angDiamMas, 1e-9 * r.angDiamMas);
+        assertEachInputMatchesTypedBlend(bright, "M_Ks 4.49");
+    }
+
+    /**
+     * Each band of {@code in}, its [Fe/H] and its distance alone: M_bol, ln R and ln θ against central differences of the
+     * typed blend ({@link #blendMbol}, {@link #blendLnTheta}) at the Teff and weight the core gives for the shifted input.
+     */
+    static void assertEachInputMatchesTypedBlend(StarInput in, String star) {
+        for (Band band : Band.values()) {
+            int b = band.ordinal();
+            if (in.hasMag[b]) {
+                assertSourceMatchesTypedBlend(in, b, (s, dx) -> s.mag[b] += dx, in.magErr[b], star + ", band " + band);
+            }
         }
-        StarResult ks = onlySource(in, Band.KS.ordinal());
-        assertClose(bandTerm(in, Band.KS, x -> blendLnTheta(in, x)), ks.angDiamErrMas / ks.angDiamMas, "band Ks ln θ");
-        StarResult r = onlySource(in, ErrorSource.FEH);
-        ObjDoubleConsumer<StarInput> feh = (s, dx) -> s.feh += dx;
-        assertClose(term(in, feh, in.fehErr, x -> blendMbol(in, x)), r.mbolErrMag, "[Fe/H] M_bol");
-        assertClose(term(in, feh, in.fehErr, lnR), r.radiusErrRsun / r.radiusRsun, "[Fe/H] ln R");
-        // the distance moves both routes' M_bol alike but θ on the radius route only (θ = 2R/d; Teff and w stay)
-        r = onlySource(in, ErrorSource.MU);
-        ObjDoubleConsumer<StarInput> plx = (s, dx) -> s.parallaxMas += dx;
-        assertClose(term(in, plx, in.parallaxErrMas, x -> blendMbol(in, x)), r.mbolErrMag, "distance M_bol");
-        assertClose(term(in, plx, in.parallaxErrMas, lnR), r.radiusErrRsun / r.radiusRsun, "distance ln R");
-        assertClose(term(in, plx, in.parallaxErrMas, x -> blendLnTheta(in, x)), r.angDiamErrMas / r.angDiamMas, "distance ln θ");
+        assertSourceMatchesTypedBlend(in, ErrorSource.FEH, (s, dx) -> s.feh += dx, in.fehErr, star + ", [Fe/H]");
+        assertSourceMatchesTypedBlend(in, ErrorSource.MU, (s, dx) -> s.parallaxMas += dx, in.parallaxErrMas, star + ", distance");
+    }
+
+    private static void assertSourceMatchesTypedBlend(StarInput in, int j, ObjDoubleConsumer<StarInput> shift, double sigma,
+                                                      String what) {
+        StarResult r = onlySource(in, j);
+        ToDoubleFunction<StarResult> mbol = x -> blendMbol(in, x);
+        assertTermClose(in, shift, sigma, r, mbol, r.mbolErrMag, what + ": M_bol");
+        assertTermClose(in, shift, sigma, r, x -> Math.log(radiusRsun(lumLsun(mbol.applyAsDouble(x)), x.teffK)),
+                r.radiusErrRsun / r.radiusRsun, what + ": ln R");
+        assertTermClose(in, shift, sigma, r, x -> blendLnTheta(in, x), r.angDiamErrMas / r.angDiamMas, what + ": ln θ");
+    }
+
+    /**
+     * {@link #term} of f against {@code actual}, to 2 % of the sum of the term and its part through Teff, |∂f/∂Teff| σ_Teff
+     * (the typed f by central difference over ±1 K at the star's weight; σ_Teff with only this source on), plus 1e-5:
+     * Teff's own first-order error, this step's input, differs from central differences of the derived Teff by up to
+     * 1.2 % in the blend (TeffBlend, upstream), which is not 2 % of the term where the direct and the Teff-driven parts
+     * nearly cancel (V in M_bol of {@link #k7Brighter} 0.4: 0.010 − 0.008 mag). f reads Teff and the two weights of x.
+     */
+    static void assertTermClose(StarInput in, ObjDoubleConsumer<StarInput> shift, double sigma, StarResult r,
+                                ToDoubleFunction<StarResult> f, double actual, String what) {
+        double expected = term(in, shift, sigma, f);
+        assertEquals(expected, actual, 0.02 * (expected + teffPart(r, f)) + 1e-5, what);
+    }
+
+    /** |∂f/∂Teff| σ_Teff of result r: the typed f by central difference over ±1 K at r's weights. */
+    static double teffPart(StarResult r, ToDoubleFunction<StarResult> f) {
+        StarResult at = new StarResult();
+        at.radiusMksWeight = r.radiusMksWeight;
+        at.massMksWeight = r.massMksWeight;
+        at.teffK = r.teffK + 1;
+        double up = f.applyAsDouble(at);
+        at.teffK = r.teffK - 1;
+        return Math.abs(up - f.applyAsDouble(at)) / 2 * r.teffErrK;
+    }
+
+    /**
+     * The blend source alone in a blend star with one route only: Teff moves by the Teff regimes' spread (TeffBlend,
+     * upstream: read as σ_Teff), and the routes have no disagreement to add, so M_bol, ln R and ln θ move through Teff
+     * alone (on the radius route R and θ = 2R/d not at all).
+     */
+    @Test
+    void withOneRouteOnlyTheBlendSourceMovesLRAndThetaThroughTeffAlone() {
+        for (StarInput in : new StarInput[] {blendStarWithoutV(), k7Brighter(0.4)}) {
+            StarResult r = onlySource(in, ErrorSource.BLEND);
+            String what = "w " + r.radiusMksWeight;
+            assertTrue(r.teffErrK > 1, what + ": the Teff regimes disagree, σ_Teff " + r.teffErrK);
+            ToDoubleFunction<StarResult> mbol = x -> blendMbol(in, x);
+            assertEquals(teffPart(r, mbol), r.mbolErrMag, 1e-6 * r.mbolErrMag + 1e-9, what + ": M_bol");
+            double lnR = teffPart(r, x -> Math.log(radiusRsun(lumLsun(mbol.applyAsDouble(x)), x.teffK)));
+            assertEquals(lnR, r.radiusErrRsun / r.radiusRsun, 1e-6 * lnR + 1e-9, what + ": ln R");
+            double lnTheta = teffPart(r, x -> blendLnTheta(in, x));
+            assertEquals(lnTheta, r.angDiamErrMas / r.angDiamMas, 1e-6 * lnTheta + 1e-9, what + ": ln θ");
+        }
     }
 
     /**
@@ -331,23 +436,6 @@ class LuminosityRadiusStepTest {
         double spread = Math.sqrt(w * (1 - w)) * (mbolOfRadius(mannRadius(in), t) - mbolBc);
         double sMbol = dMbolDt * sT + spread;
         return new double[] {sT, sMbol, -0.2 * LN10 * sMbol - 2 * sT / t};
-    }
-
-    /**
-     * θ is blended in log with the weight w of the radius route, and w moves with every source of the Mann
-     * temperature (V, I_C, J, [Fe/H] here): d ln θ = w d ln θ_R + (1 − w) d ln θ_BC + (ln θ_R − ln θ_BC) dw, as M_bol's
-     * error already does. (Before 40cc313 the step left out the dw term for θ: for V alone it gave σ_θ/θ = 0.0022 where
-     * the typed blend gives 0.0092.)
-     */
-    @Test
-    void inTheBlendThetaErrorCarriesTheMovingWeight() {
-        StarInput in = k7InBlend();
-        for (Band band : new Band[] {Band.B, Band.V, Band.IC, Band.J}) {
-            StarResult r = onlySource(in, band.ordinal());
-            assertClose(bandTerm(in, band, x -> blendLnTheta(in, x)), r.angDiamErrMas / r.angDiamMas, "band " + band + " ln θ");
-        }
-        StarResult r = onlySource(in, ErrorSource.FEH);
-        assertClose(term(in, (s, dx) -> s.feh += dx, in.fehErr, x -> blendLnTheta(in, x)), r.angDiamErrMas / r.angDiamMas, "[Fe/H] ln θ");
     }
 
     /**

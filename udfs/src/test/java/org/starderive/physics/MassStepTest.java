@@ -3,12 +3,11 @@ package org.starderive.physics;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 import static org.starderive.physics.LuminosityRadiusStepTest.LN10;
-import static org.starderive.physics.LuminosityRadiusStepTest.assertClose;
-import static org.starderive.physics.LuminosityRadiusStepTest.bandTerm;
 import static org.starderive.physics.LuminosityRadiusStepTest.k7InBlend;
 import static org.starderive.physics.LuminosityRadiusStepTest.mu;
 import static org.starderive.physics.LuminosityRadiusStepTest.onlySource;
 
+import java.util.function.ObjDoubleConsumer;
 import java.util.function.ToDoubleFunction;
 import org.junit.jupiter.api.Test;
 
@@ -110,12 +109,15 @@ class MassStepTest {
         assertMassErrors(r, 0.020, 0, "mass scatter without [Fe/H]");
     }
 
-    /** ln M of the K7 blend star typed: w ln M(Mann 2019, M_Ks) + (1 − w) ln M(Eker 2018, L of the typed L/R blend). */
-    private static double blendLnMass(StarInput in, StarResult x) {
-        double w = x.massMksWeight;
+    /**
+     * ln M of a K7 blend star typed: w ln M(Mann 2019, M_Ks) + (1 − w) ln M(Eker 2018 segment i, L of the typed L/R
+     * blend); a relation of weight 0 is left out (outside its range).
+     */
+    private static double blendLnMass(StarInput in, StarResult x, int segment) {
         double mKs = in.mag[Band.KS.ordinal()] - mu(in.parallaxMas);
         double lum = LuminosityRadiusStepTest.lumLsun(LuminosityRadiusStepTest.blendMbol(in, x));
-        return LN10 * (w * MannRelationsTest.logMassFeh(mKs, in.feh) + (1 - w) * ekerLogMass(1, lum));
+        return LN10 * LuminosityRadiusStepTest.weighted(x.massMksWeight, MannRelationsTest.logMassFeh(mKs, in.feh),
+                ekerLogMass(segment, lum));
     }
 
     private static double blendLnRadius(StarInput in, StarResult x) {
@@ -132,24 +134,62 @@ class MassStepTest {
         assertTrue(r.massMksWeight > 0.1 && r.massMksWeight < 0.9, "w " + r.massMksWeight);
         double logL = Math.log10(r.lumLsun);
         assertTrue(logL > -1.68 && logL < -0.83, "log L on Eker's 0.45–0.72 M⊙ segment alone: " + logL);
-        double mass = Math.exp(blendLnMass(in, r));
-        assertEquals(mass, r.massMsun, 1e-9 * mass);
-        assertDensityAndLogg(r, mass, "K7");
-        // one source at a time against central differences of the typed blend (ρ ∝ M R⁻³, g ∝ M R⁻²)
-        ToDoubleFunction<StarResult> lnM = x -> blendLnMass(in, x);
-        ToDoubleFunction<StarResult> lnRho = x -> blendLnMass(in, x) - 3 * blendLnRadius(in, x);
-        ToDoubleFunction<StarResult> lnG = x -> blendLnMass(in, x) - 2 * blendLnRadius(in, x);
+        assertMassMatchesTypedBlend(in, r, 1, "K7");
+    }
+
+    /**
+     * The K7 blend star brighter in every band keeps its colours, Teff and Teff weight: at M_Ks 4.49 (Ks 0.4 mag
+     * brighter) both mass relations apply while L comes from the BC route alone (Mann et al. 2015's radius holds for
+     * M_Ks > 4.6 only); at M_Ks 3.89 (1.0 mag brighter) Mann et al. 2019 (4.0 < M_Ks < 11.0) gives no mass and Eker
+     * et al. 2018 is used alone, although the Teff weight still moves with the inputs.
+     */
+    @Test
+    void aBrighterBlendStarTakesTheMassRelationsWhoseRangesItIsIn() {
+        StarInput both = LuminosityRadiusStepTest.k7Brighter(0.4);
+        StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(both, new StarResult());
+        assertEquals(0.0, r.radiusMksWeight, 0.0);
+        assertTrue(r.massMksWeight > 0.1 && r.massMksWeight < 0.9, "w " + r.massMksWeight);
+        double logL = Math.log10(r.lumLsun);
+        assertTrue(logL > -1.68 && logL < -0.83, "log L on Eker's 0.45–0.72 M⊙ segment alone: " + logL);
+        assertMassMatchesTypedBlend(both, r, 1, "M_Ks 4.49");
+
+        StarInput ekerOnly = LuminosityRadiusStepTest.k7Brighter(1.0);
+        r = new StarDeriver(DeriveSettings.defaults()).derive(ekerOnly, new StarResult());
+        assertEquals(6.40 - 1.0 - mu(50), r.absMag[Band.KS.ordinal()], 1e-9);
+        assertEquals(0.0, r.massMksWeight, 0.0);
+        logL = Math.log10(r.lumLsun);
+        assertTrue(logL > -0.75 && logL < 0.10, "log L on Eker's 0.72–1.05 M⊙ segment alone: " + logL);
+        assertMassMatchesTypedBlend(ekerOnly, r, 2, "M_Ks 3.89");
+    }
+
+    /**
+     * M, ρ and g of the blend star {@code in} (r its result) against the typed blend on Eker segment {@code segment};
+     * then one source at a time against central differences of the typed blend (ρ ∝ M R⁻³, g ∝ M R⁻²).
+     */
+    private static void assertMassMatchesTypedBlend(StarInput in, StarResult r, int segment, String star) {
+        double mass = Math.exp(blendLnMass(in, r, segment));
+        assertEquals(mass, r.massMsun, 1e-9 * mass, star);
+        assertDensityAndLogg(r, mass, star);
+        ToDoubleFunction<StarResult> lnM = x -> blendLnMass(in, x, segment);
+        ToDoubleFunction<StarResult> lnRho = x -> blendLnMass(in, x, segment) - 3 * blendLnRadius(in, x);
+        ToDoubleFunction<StarResult> lnG = x -> blendLnMass(in, x, segment) - 2 * blendLnRadius(in, x);
         for (Band band : new Band[] {Band.V, Band.IC, Band.J, Band.KS}) {
-            StarResult one = onlySource(in, band.ordinal());
-            assertClose(bandTerm(in, band, lnM), one.massErrMsun / one.massMsun, "band " + band + " ln M");
-            assertClose(bandTerm(in, band, lnRho), one.densityErrKgM3 / one.densityKgM3, "band " + band + " ln ρ");
-            assertClose(bandTerm(in, band, lnG), one.loggErrCgs * LN10, "band " + band + " ln g");
+            int b = band.ordinal();
+            assertMassTermsClose(in, b, (s, dx) -> s.mag[b] += dx, in.magErr[b], lnM, lnRho, lnG, star + ", band " + band);
         }
-        StarResult one = onlySource(in, ErrorSource.FEH);
-        assertClose(LuminosityRadiusStepTest.term(in, (s, dx) -> s.feh += dx, in.fehErr, lnM), one.massErrMsun / one.massMsun, "[Fe/H] ln M");
-        one = onlySource(in, ErrorSource.MU);
-        assertClose(LuminosityRadiusStepTest.term(in, (s, dx) -> s.parallaxMas += dx, in.parallaxErrMas, lnM),
-                one.massErrMsun / one.massMsun, "distance ln M");
+        assertMassTermsClose(in, ErrorSource.FEH, (s, dx) -> s.feh += dx, in.fehErr, lnM, lnRho, lnG, star + ", [Fe/H]");
+        assertMassTermsClose(in, ErrorSource.MU, (s, dx) -> s.parallaxMas += dx, in.parallaxErrMas, lnM, lnRho, lnG,
+                star + ", distance");
+    }
+
+    /** Source j alone: the relative errors of M, ρ and g against {@link LuminosityRadiusStepTest#assertTermClose}. */
+    private static void assertMassTermsClose(StarInput in, int j, ObjDoubleConsumer<StarInput> shift, double sigma,
+                                             ToDoubleFunction<StarResult> lnM, ToDoubleFunction<StarResult> lnRho,
+                                             ToDoubleFunction<StarResult> lnG, String what) {
+        StarResult one = onlySource(in, j);
+        LuminosityRadiusStepTest.assertTermClose(in, shift, sigma, one, lnM, one.massErrMsun / one.massMsun, what + " ln M");
+        LuminosityRadiusStepTest.assertTermClose(in, shift, sigma, one, lnRho, one.densityErrKgM3 / one.densityKgM3, what + " ln ρ");
+        LuminosityRadiusStepTest.assertTermClose(in, shift, sigma, one, lnG, one.loggErrCgs * LN10, what + " ln g");
     }
 
     @Test
@@ -185,6 +225,60 @@ class MassStepTest {
         r = d.derive(LuminosityRadiusStepTest.mDwarfAt10pc(11.0), new StarResult());
         assertTrue(Math.log10(r.lumLsun) < 2.028 * Math.log10(0.179) - 0.976, "log L " + Math.log10(r.lumLsun));
         assertNoMass(r, "M_Ks 11.0");
+    }
+
+    @Test
+    void belowEkersRangeAnMDwarfsMassCarriesMann2019sScatterAlone() {
+        // M_Ks 10.5: inside Mann et al. 2019 (4.0–11.0), L below Eker et al. 2018's lowest mass (log L −2.49), and
+        // outside Mann et al. 2015's radius range (R from the BC route). Only Mann's own scatter, 2.1 % in M for the
+        // [Fe/H] form, moves M (and so ρ and g); R does not move with it
+        StarResult r = onlySource(LuminosityRadiusStepTest.mDwarfAt10pc(10.5), ErrorSource.MASS_REL);
+        assertTrue(Math.log10(r.lumLsun) < 2.028 * Math.log10(0.179) - 0.976, "log L " + Math.log10(r.lumLsun));
+        assertEquals(1.0, r.massMksWeight, 0.0);
+        assertMassErrors(r, 0.021, 0, "Mann scatter below Eker's range");
+    }
+
+    @Test
+    void aBlendStarFainterThanEkersRangeTakesMann2019sMassAlone() {
+        // the K7 blend star 5.6 mag fainter in every band (same colours and Teff weight): M_Ks 10.49 lies inside Mann
+        // et al. 2019 (4.0–11.0), its L below Eker et al. 2018's lowest mass (log L −2.49), so Mann's mass is used alone
+        StarInput in = LuminosityRadiusStepTest.k7Brighter(-5.6);
+        StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
+        double mKs = 6.40 + 5.6 - mu(50);
+        assertEquals(mKs, r.absMag[Band.KS.ordinal()], 1e-9);
+        assertTrue(Math.log10(r.lumLsun) < 2.028 * Math.log10(0.179) - 0.976, "log L " + Math.log10(r.lumLsun));
+        assertEquals(1.0, r.massMksWeight, 0.0);
+        double mass = Math.pow(10, MannRelationsTest.logMassFeh(mKs, 0.0));
+        assertEquals(mass, r.massMsun, 1e-9 * mass);
+        assertDensityAndLogg(r, mass, "faint K7");
+        assertMassErrors(onlySource(in, ErrorSource.MASS_REL), 0.021, 0, "faint K7, Mann scatter");
+    }
+
+    /**
+     * One Monte Carlo draw with the relations' scatter at +1σ (StarDeriver.deriveDraw: every source moves by z σ):
+     * in the K7 blend one z moves both mass relations, as the first-order path adds their scatters linearly
+     * ((1 − w) ln10 · 0.05 / α + w · 0.021 in ln M: Eker et al. 2018 Table 4 segment 0.45–0.72 M⊙ with the project's
+     * 0.05 dex, Mann et al. 2019), and the radius relation's 2.70 % (Mann et al. 2015) moves ln R by w · 0.027 (it
+     * enters M_bol with weight w; L = R² (Teff/Teff⊙)⁴ at a fixed Teff).
+     */
+    @Test
+    void aDrawMovesEachRelationsScatterByZSigma() {
+        StarInput in = k7InBlend();
+        StarDeriver d = new StarDeriver(DeriveSettings.defaults());
+        StarResult nominal = d.derive(in, new StarResult());
+        double w = nominal.massMksWeight;
+        double[] z = new double[ErrorSource.COUNT];
+        z[ErrorSource.MASS_REL] = 1;
+        StarResult r = StarDeriverTest.draw(d, in, z, LuminosityClass.MAIN_SEQUENCE, Double.NaN);
+        assertEquals(nominal.teffK, r.teffK, 1e-9);
+        double dLnM = (1 - w) * LN10 * 0.05 * ekerSlope(1) + w * 0.021;
+        assertEquals(dLnM, Math.log(r.massMsun / nominal.massMsun), 1e-9);
+        assertEquals(nominal.radiusRsun, r.radiusRsun, 1e-12);
+        z[ErrorSource.MASS_REL] = 0;
+        z[ErrorSource.RADIUS_REL] = 1;
+        r = StarDeriverTest.draw(d, in, z, LuminosityClass.MAIN_SEQUENCE, Double.NaN);
+        assertEquals(w * 0.0270, Math.log(r.radiusRsun / nominal.radiusRsun), 1e-9);
+        assertEquals(2 * w * 0.0270, Math.log(r.lumLsun / nominal.lumLsun), 1e-9);
     }
 
     @Test

@@ -447,7 +447,7 @@ class StarDeriverTest {
     }
 
     /** One Monte Carlo draw of {@code in} with deviates {@code z}, no relation offsets, class and log g as given. */
-    private static StarResult draw(StarDeriver d, StarInput in, double[] z, LuminosityClass cls, double logg) {
+    static StarResult draw(StarDeriver d, StarInput in, double[] z, LuminosityClass cls, double logg) {
         return d.deriveDraw(in, new StarResult(), Double.NaN, new double[d.enabledRelations().length], z, cls, logg);
     }
 
