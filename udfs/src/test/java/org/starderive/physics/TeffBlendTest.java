@@ -304,6 +304,17 @@ class TeffBlendTest {
         assertEquals(0.0, b.wM, 0.0);
         assertEquals(bits(giant), b.relationMask);
         assertEquals(0.0, b.c[ErrorSource.BLEND], 0.0);
+        // no M-dwarf weight, so none of its slope either: the contributions are the giant mean's own (weights held)
+        double[] w = TeffEstimatorTest.weights(giant, s, 2.5);
+        double[][] g = TeffEstimatorTest.partials(giant, s, 2.5, 0);
+        for (int q = 0; q <= ErrorSource.FEH; q++) {
+            double expected = 0;
+            for (int i = 0; i < giant.size(); i++) {
+                expected += w[i] * g[i][q] / Arrays.stream(w).sum();
+            }
+            assertEquals(expected, b.c[q], 1e-5, "contribution of " + ErrorSource.name(q));
+            assertEquals(0.0, b.dwM[q], 0.0);
+        }
         // J−Ks 0.08 only, 0.02 below the giant range (4σ): the Casagrande et al. 2010 dwarf relation
         StarState blue = emptyState();
         band(blue, Band.J, 8.08, 0.003, 0.87);
