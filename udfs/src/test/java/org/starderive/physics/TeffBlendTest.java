@@ -29,7 +29,7 @@ class TeffBlendTest {
     private static final double[] F96 = {3.979145106714099, -0.654992268598245, 1.740690042385095, -4.608815154057166,
             6.792599779944473, -5.396909891322525, 2.192970376522490, -0.359495739295671};
 
-    private static double flowerK(double bv) {
+    static double flowerK(double bv) {
         double logT = 0;
         for (int i = 0; i < F96.length; i++) {
             logT += F96[i] * Math.pow(bv, i);
@@ -37,26 +37,33 @@ class TeffBlendTest {
         return Math.pow(10, logT);
     }
 
-    private static final Rel F96_BV = new Rel("F96/B-V", Band.B, Band.V, Double.NaN, 0.0,
+    static final Rel F96_BV = new Rel("F96/B-V", Band.B, Band.V, Double.NaN, 0.0,
             (m0, f, g) -> flowerK(m0[Band.B.ordinal()] - m0[Band.V.ordinal()]));
 
     /** M-dwarf weight, the rule of {@link Regime}: 1 up to 4100 K, 0 from 4300 K, linear between. */
-    private static double mWeight(double tK) {
+    static double mWeight(double tK) {
         return tK <= 4100 ? 1 : tK >= 4300 ? 0 : (4300 - tK) / 200;
     }
 
     /** Hot weight, the rule of {@link Regime}: 0 up to 7000 K, 1 from 7500 K, linear between. */
-    private static double hotWeight(double tK) {
+    static double hotWeight(double tK) {
         return tK <= 7000 ? 0 : tK >= 7500 ? 1 : (tK - 7000) / 500;
     }
 
-    private static TeffBlend blend(StarState s) {
-        TeffRelation[] all = TeffRelations.all().toArray(new TeffRelation[0]);
-        return new TeffBlend(DeriveSettings.defaults(), s, all, IntStream.range(0, all.length).toArray());
+    static TeffBlend blend(StarState s) {
+        return blend(s, DeriveSettings.defaults());
+    }
+
+    /** The blend of the relations {@code settings} enables, each at its catalogue bit (as {@link StarDeriver} sets it up). */
+    static TeffBlend blend(StarState s, DeriveSettings settings) {
+        List<TeffRelation> all = TeffRelations.all();
+        int[] index = IntStream.range(0, all.size()).filter(i -> (settings.relationMask() & (1L << i)) != 0).toArray();
+        TeffRelation[] enabled = Arrays.stream(index).mapToObj(all::get).toArray(TeffRelation[]::new);
+        return new TeffBlend(settings, s, enabled, index);
     }
 
     /** A new star's main-sequence blend at log g {@code logg} (no log g error). */
-    private static TeffBlend blended(StarState s, double logg) {
+    static TeffBlend blended(StarState s, double logg) {
         TeffBlend b = blend(s);
         b.newStar();
         b.estimate(LuminosityClass.MAIN_SEQUENCE, logg, 0.0);
@@ -107,7 +114,7 @@ class TeffBlendTest {
     }
 
     /** V, J, Ks only, no reddening: V−J and J−Ks as given; [Fe/H] not measured (0 ± 0.1 assumed). */
-    private static StarState vjk(double vMinusJ, double jMinusKs) {
+    static StarState vjk(double vMinusJ, double jMinusKs) {
         StarState s = emptyState();
         band(s, Band.V, 8.0 + vMinusJ + jMinusKs, 0.02, 3.1);
         band(s, Band.J, 8.0 + jMinusKs, 0.025, 0.87);
@@ -297,6 +304,17 @@ class TeffBlendTest {
         assertEquals(0.0, b.wM, 0.0);
         assertEquals(bits(giant), b.relationMask);
         assertEquals(0.0, b.c[ErrorSource.BLEND], 0.0);
+        // no M-dwarf weight, so none of its slope either: the contributions are the giant mean's own (weights held)
+        double[] w = TeffEstimatorTest.weights(giant, s, 2.5);
+        double[][] g = TeffEstimatorTest.partials(giant, s, 2.5, 0);
+        for (int q = 0; q <= ErrorSource.FEH; q++) {
+            double expected = 0;
+            for (int i = 0; i < giant.size(); i++) {
+                expected += w[i] * g[i][q] / Arrays.stream(w).sum();
+            }
+            assertEquals(expected, b.c[q], 1e-5, "contribution of " + ErrorSource.name(q));
+            assertEquals(0.0, b.dwM[q], 0.0);
+        }
         // J−Ks 0.08 only, 0.02 below the giant range (4σ): the Casagrande et al. 2010 dwarf relation
         StarState blue = emptyState();
         band(blue, Band.J, 8.08, 0.003, 0.87);
@@ -423,5 +441,8 @@ class TeffBlendTest {
         double tm = TeffEstimatorTest.M15_VJ.t().teffK(k7.m0, 0, 4.6);
         double wm = mWeight(tm);
         assertEquals((1 - wm) * tf + wm * tm + 2 * Math.sqrt(wm * (1 - wm)) * (tm - tf), kb.mean, 1e-6);
+        // bounds only flag the nominal estimate (TeffEstimator): a draw, with no error of its own, breaks none
+        assertTrue(Double.isNaN(kb.err));
+        assertFalse(kb.boundBroken);
     }
 }
