@@ -236,4 +236,34 @@ class MonteCarloStarDrawsTest {
         assertEquals("C10/B-V", b.teffFrom());
         assertEquals(b.teffK, q[1][1], 0.25 * 73, "median Teff");
     }
+
+    @Test
+    void aStarWithoutDistanceDrawsTheAssumedLoggOfItsGaiaRelation() {
+        // The G dwarf seen in Gaia-like bands and 2MASS of ErrorSourceTest moved from 100 pc to 1.43 pc (every magnitude
+        // 5 log10(100/1.43) brighter: distance modulus, common practice), with a poor parallax, 700 ± 300 mas: ϖ/σ 2.3
+        // is below distance_snr_min (5, README), so no distance and no class. Its Teff comes from the Casagrande et al.
+        // 2021 relations at an assumed log g, itself an error source for such a star (ErrorSource LOGG): with only that
+        // source on, half the 16–84 % range must be the first-order error (a Gaussian's half-range is its σ, common
+        // practice; the C21 relations are linear in log g) within 25 %, 4 standard errors of that half-range for 256
+        // draws (0.067 σ: asymptotic law of sample quantiles, common practice).
+        StarInput in = ErrorSourceTest.stars().get(0).parallax(700, 300);
+        for (int k = 0; k < Band.COUNT; k++) {
+            if (in.hasMag[k]) {
+                in.mag[k] -= 5 * Math.log10(100 / 1.43);
+            }
+        }
+        long logg = 1L << ErrorSource.LOGG;
+        StarDeriver first = new StarDeriver(DeriveSettings.defaults());
+        first.errorSources(logg);
+        StarResult b = first.derive(in, new StarResult());
+        assertEquals(StarResult.DistanceMethod.NONE, b.distMethod);
+        assertNull(b.lumClass);
+        assertTrue(b.teffFrom().contains("C21/BP-RP/dwarf"), b.teffFrom());
+        assertTrue(b.teffErrK > 10, "the assumed log g moves the Teff: " + b.teffErrK);
+        MonteCarloDeriver mc = new MonteCarloDeriver(DeriveSettings.defaults(), 256, 5);
+        mc.errorSources(logg);
+        double[][] q = run(mc, in);
+        assertEquals(b.teffErrK, (q[1][2] - q[1][0]) / 2, 0.25 * b.teffErrK, "Teff spread from the assumed log g");
+        assertEquals(b.teffK, q[1][1], 0.25 * b.teffErrK, "median Teff");
+    }
 }
