@@ -11,7 +11,10 @@ import java.math.BigInteger;
 import java.math.MathContext;
 import java.util.Arrays;
 import java.util.SplittableRandom;
+import org.apache.commons.math3.stat.descriptive.rank.Percentile;
 import org.apache.commons.rng.core.source64.SplitMix64;
+import org.apache.commons.rng.sampling.distribution.ZigguratSampler;
+import org.apache.commons.rng.simple.RandomSource;
 import org.junit.jupiter.api.Test;
 
 class MonteCarloDeriverTest {
@@ -231,6 +234,28 @@ class MonteCarloDeriverTest {
         return n;
     }
 
+    /**
+     * 16th, 50th, 84th percentiles (Commons Math Percentile, type 6: R_6) of n distances 1000 / (ϖ + σ z) pc, z every
+     * (m + 1)-th standard normal deviate of the stream of star {@code key} under run seed 1: Commons RNG's
+     * XoRoShiRo128++ at output 1 of a SplitMix64 seeded with the key (both checked above), through Commons RNG's
+     * ZigguratSampler, the sampler the draws use. At ϖ/σ ≥ 10 no ϖ' ≤ 0 needs a redraw.
+     */
+    static double[] streamInverseParallaxPercentiles(double plx, double sig, long key, int n, int m) {
+        assertTrue(plx >= 10 * sig, "no redraws");
+        ZigguratSampler.NormalizedGaussian z = ZigguratSampler.NormalizedGaussian.of(
+                RandomSource.XO_RO_SHI_RO_128_PP.create(new SplitMix64(key).nextLong()));
+        double[] d = new double[n];
+        for (int i = 0; i < n; i++) {
+            for (int k = 0; k < m; k++) {
+                z.sample();
+            }
+            d[i] = 1000 / (plx + sig * z.sample());
+        }
+        Percentile ref = new Percentile().withEstimationType(Percentile.EstimationType.R_6);
+        ref.setData(d);
+        return new double[] {ref.evaluate(100 * StarDeriver.P16), ref.evaluate(50), ref.evaluate(100 * StarDeriver.P84)};
+    }
+
     @Test
     void eachDrawSpendsOneDeviatePerSourceAndPerRelationItsClassEvaluates() {
         // The random numbers a draw spends are not visible in the spread, only in the stream: with the distance the
@@ -248,27 +273,12 @@ class MonteCarloDeriverTest {
             assertEquals(StarResult.DistanceMethod.INVERSE_PARALLAX, b.distMethod);
             assertEquals(in == dwarf ? LuminosityClass.MAIN_SEQUENCE : LuminosityClass.EVOLVED, b.lumClass);
             int m = deviatesBeforeTheDistance(in, b);
-            org.apache.commons.rng.sampling.distribution.ZigguratSampler.NormalizedGaussian z =
-                    org.apache.commons.rng.sampling.distribution.ZigguratSampler.NormalizedGaussian.of(
-                            org.apache.commons.rng.simple.RandomSource.XO_RO_SHI_RO_128_PP.create(new SplitMix64(key).nextLong()));
-            double[] d = new double[n];
-            for (int i = 0; i < n; i++) {
-                for (int k = 0; k < m; k++) {
-                    z.sample();
-                }
-                d[i] = 1000 / (in.parallaxMas + in.parallaxErrMas * z.sample());
-            }
-            org.apache.commons.math3.stat.descriptive.rank.Percentile ref =
-                    new org.apache.commons.math3.stat.descriptive.rank.Percentile()
-                            .withEstimationType(org.apache.commons.math3.stat.descriptive.rank.Percentile.EstimationType.R_6);
-            ref.setData(d);
+            double[] expected = streamInverseParallaxPercentiles(in.parallaxMas, in.parallaxErrMas, key, n, m);
             MonteCarloDeriver mc = new MonteCarloDeriver(DeriveSettings.defaults(), n, 1);
             mc.errorSources(1L << ErrorSource.MU);
             double[][] q = run(mc, in, key);
-            double[] p = {StarDeriver.P16, 0.5, StarDeriver.P84};
             for (int k = 0; k < 3; k++) {
-                double expected = ref.evaluate(100 * p[k]);
-                assertEquals(expected, q[0][k], 1e-12 * expected, b.lumClass + ", " + m + " deviates before the distance, percentile " + k);
+                assertEquals(expected[k], q[0][k], 1e-12 * expected[k], b.lumClass + ", " + m + " deviates before the distance, percentile " + k);
             }
         }
     }

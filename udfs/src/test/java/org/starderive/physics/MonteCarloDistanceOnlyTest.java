@@ -3,11 +3,6 @@ package org.starderive.physics;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
-import org.apache.commons.math3.stat.descriptive.rank.Percentile;
-import org.apache.commons.rng.UniformRandomProvider;
-import org.apache.commons.rng.core.source64.SplitMix64;
-import org.apache.commons.rng.sampling.distribution.ZigguratSampler;
-import org.apache.commons.rng.simple.RandomSource;
 import org.junit.jupiter.api.Test;
 
 /**
@@ -58,25 +53,17 @@ class MonteCarloDistanceOnlyTest {
         // own stream, Commons RNG's XoRoShiRo128++ at the star seed (for run seed 1: output 1 of a SplitMix64 seeded
         // with the star key; MonteCarloDeriverTest checks both). So its 64 draws are exactly 1/ϖ' with ϖ' = ϖ + σ z and
         // z the stream's first 64 standard normal deviates (Commons RNG's ZigguratSampler, the sampler the draws use;
-        // at ϖ/σ = 10 no redraw happens), and its percentiles those of Commons Math's type-6 Percentile (R_6) of them.
+        // at ϖ/σ = 10 no redraw happens), and its percentiles those of Commons Math's type-6 Percentile (R_6) of them
+        // (MonteCarloDeriverTest.streamInverseParallaxPercentiles with no deviate skipped).
         int n = 64;
         double plx = 10;
         double sig = 1;
         long key = 42;
-        UniformRandomProvider stream = RandomSource.XO_RO_SHI_RO_128_PP.create(new SplitMix64(key).nextLong());
-        ZigguratSampler.NormalizedGaussian z = ZigguratSampler.NormalizedGaussian.of(stream);
-        double[] d = new double[n];
-        for (int i = 0; i < n; i++) {
-            d[i] = 1000 / (plx + sig * z.sample());
-        }
-        Percentile ref = new Percentile().withEstimationType(Percentile.EstimationType.R_6);
-        ref.setData(d);
+        double[] expected = MonteCarloDeriverTest.streamInverseParallaxPercentiles(plx, sig, key, n, 0);
         double[][] out = new double[MonteCarloDeriver.NQ][3];
         new MonteCarloDeriver(DeriveSettings.defaults(), n, 1).percentiles(new StarInput().parallax(plx, sig), key, out);
-        double[] p = {StarDeriver.P16, 0.5, StarDeriver.P84};
         for (int k = 0; k < 3; k++) {
-            double expected = ref.evaluate(100 * p[k]);
-            assertEquals(expected, out[0][k], 1e-12 * expected, "distance percentile " + k);
+            assertEquals(expected[k], out[0][k], 1e-12 * expected[k], "distance percentile " + k);
         }
     }
 }
