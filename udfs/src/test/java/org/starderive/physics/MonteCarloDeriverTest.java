@@ -11,7 +11,10 @@ import java.math.BigInteger;
 import java.math.MathContext;
 import java.util.Arrays;
 import java.util.SplittableRandom;
+import org.apache.commons.math3.stat.descriptive.rank.Percentile;
 import org.apache.commons.rng.core.source64.SplitMix64;
+import org.apache.commons.rng.sampling.distribution.ZigguratSampler;
+import org.apache.commons.rng.simple.RandomSource;
 import org.junit.jupiter.api.Test;
 
 class MonteCarloDeriverTest {
@@ -206,6 +209,76 @@ class MonteCarloDeriverTest {
         for (int k = 0; k < MonteCarloDeriver.NQ; k++) {
             for (int i = 0; i < 3; i++) {
                 assertEquals(nominal[k], q[k][i], 1e-9 * Math.abs(nominal[k]), MonteCarloDeriver.QUANTITIES[k] + " " + i);
+            }
+        }
+    }
+
+    /**
+     * Standard normal deviates one draw of {@code in} takes before its distance, by the class Javadoc: one per error
+     * source the star has (each measured band; E(B−V), [Fe/H], the zero points, the radius, mass and blend relations;
+     * the log g prior only where the star has no log g of its own, as evolved stars never do; G→V only where V comes
+     * from G), then one per relation whose two bands the star has, for the regimes its class blends (a main-sequence
+     * star: FGK dwarf, M dwarf, hot; an evolved one: giant, FGK dwarf, hot).
+     */
+    private static int deviatesBeforeTheDistance(StarInput in, StarResult b) {
+        int n = 6;
+        for (int k = 0; k < Band.COUNT; k++) {
+            n += in.hasMag[k] ? 1 : 0;
+        }
+        n += Double.isNaN(b.loggCgs) ? 1 : 0;
+        n += QualityFlag.V_FROM_G.isSet(b.flags) ? 1 : 0;
+        Regime skipped = b.lumClass == LuminosityClass.EVOLVED ? Regime.M_DWARF : Regime.GIANT;
+        for (TeffRelation r : TeffRelations.all()) {
+            n += in.hasMag[r.blue().ordinal()] && in.hasMag[r.red().ordinal()] && r.regime() != skipped ? 1 : 0;
+        }
+        return n;
+    }
+
+    /**
+     * 16th, 50th, 84th percentiles (Commons Math Percentile, type 6: R_6) of n distances 1000 / (ϖ + σ z) pc, z every
+     * (m + 1)-th standard normal deviate of the stream of star {@code key} under run seed 1: Commons RNG's
+     * XoRoShiRo128++ at output 1 of a SplitMix64 seeded with the key (both checked above), through Commons RNG's
+     * ZigguratSampler, the sampler the draws use. At ϖ/σ ≥ 10 no ϖ' ≤ 0 needs a redraw.
+     */
+    static double[] streamInverseParallaxPercentiles(double plx, double sig, long key, int n, int m) {
+        assertTrue(plx >= 10 * sig, "no redraws");
+        ZigguratSampler.NormalizedGaussian z = ZigguratSampler.NormalizedGaussian.of(
+                RandomSource.XO_RO_SHI_RO_128_PP.create(new SplitMix64(key).nextLong()));
+        double[] d = new double[n];
+        for (int i = 0; i < n; i++) {
+            for (int k = 0; k < m; k++) {
+                z.sample();
+            }
+            d[i] = 1000 / (plx + sig * z.sample());
+        }
+        Percentile ref = new Percentile().withEstimationType(Percentile.EstimationType.R_6);
+        ref.setData(d);
+        return new double[] {ref.evaluate(100 * StarDeriver.P16), ref.evaluate(50), ref.evaluate(100 * StarDeriver.P84)};
+    }
+
+    @Test
+    void eachDrawSpendsOneDeviatePerSourceAndPerRelationItsClassEvaluates() {
+        // The random numbers a draw spends are not visible in the spread, only in the stream: with the distance the
+        // only source switched on, each draw's distance is 1/ϖ' with ϖ' = ϖ + σ z and z the deviate after those the
+        // draw spends on its other sources and relations, so the percentiles are those (Commons Math R_6) of every
+        // (m + 1)-th deviate of the star's stream (Commons RNG XoRoShiRo128++ at the star seed, ZigguratSampler), m
+        // as counted above. A dwarf that also drew its giant relations, or a giant its M-dwarf ones, would take more.
+        // Stars: the solar twin (a dwarf with log g) and the red-clump giant of ErrorSourceTest (9 bands, no log g).
+        int n = 64;
+        long key = 7;
+        StarInput dwarf = StarDeriverTest.solarTwinAt10pc();
+        dwarf.parallaxErrMas = 1.0;
+        for (StarInput in : new StarInput[] {dwarf, ErrorSourceTest.stars().get(1)}) {
+            StarResult b = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
+            assertEquals(StarResult.DistanceMethod.INVERSE_PARALLAX, b.distMethod);
+            assertEquals(in == dwarf ? LuminosityClass.MAIN_SEQUENCE : LuminosityClass.EVOLVED, b.lumClass);
+            int m = deviatesBeforeTheDistance(in, b);
+            double[] expected = streamInverseParallaxPercentiles(in.parallaxMas, in.parallaxErrMas, key, n, m);
+            MonteCarloDeriver mc = new MonteCarloDeriver(DeriveSettings.defaults(), n, 1);
+            mc.errorSources(1L << ErrorSource.MU);
+            double[][] q = run(mc, in, key);
+            for (int k = 0; k < 3; k++) {
+                assertEquals(expected[k], q[0][k], 1e-12 * expected[k], b.lumClass + ", " + m + " deviates before the distance, percentile " + k);
             }
         }
     }

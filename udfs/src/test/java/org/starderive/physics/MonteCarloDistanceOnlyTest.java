@@ -46,4 +46,24 @@ class MonteCarloDistanceOnlyTest {
             assertEquals(expected[k], out[0][k], 0.03 * width, "distance percentile " + k);
         }
     }
+
+    @Test
+    void aStarWithoutTeffSpendsItsRandomNumbersOnItsDistanceAlone() {
+        // Class Javadoc: a star without a Teff only has its distance sampled, without the rest of the chain, from its
+        // own stream, Commons RNG's XoRoShiRo128++ at the star seed (for run seed 1: output 1 of a SplitMix64 seeded
+        // with the star key; MonteCarloDeriverTest checks both). So its 64 draws are exactly 1/ϖ' with ϖ' = ϖ + σ z and
+        // z the stream's first 64 standard normal deviates (Commons RNG's ZigguratSampler, the sampler the draws use;
+        // at ϖ/σ = 10 no redraw happens), and its percentiles those of Commons Math's type-6 Percentile (R_6) of them
+        // (MonteCarloDeriverTest.streamInverseParallaxPercentiles with no deviate skipped).
+        int n = 64;
+        double plx = 10;
+        double sig = 1;
+        long key = 42;
+        double[] expected = MonteCarloDeriverTest.streamInverseParallaxPercentiles(plx, sig, key, n, 0);
+        double[][] out = new double[MonteCarloDeriver.NQ][3];
+        new MonteCarloDeriver(DeriveSettings.defaults(), n, 1).percentiles(new StarInput().parallax(plx, sig), key, out);
+        for (int k = 0; k < 3; k++) {
+            assertEquals(expected[k], out[0][k], 1e-12 * expected[k], "distance percentile " + k);
+        }
+    }
 }

@@ -5,6 +5,8 @@ import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertNull;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import java.util.List;
+import org.apache.commons.math3.distribution.NormalDistribution;
 import org.junit.jupiter.api.Test;
 
 /**
@@ -103,5 +105,165 @@ class MonteCarloStarDrawsTest {
                 }
             }
         }
+    }
+
+    /**
+     * The solar twin at parallax ϖ ± σ, every magnitude shifted alike so that the analytic chain gives it
+     * {@code lumOverLmin} times the lowest luminosity of the Eker et al. 2018 mass–luminosity relation (its 0.179 M⊙
+     * end, Table 4): L scales as 10^(−0.4 Δm) when all magnitudes move by Δm and the colours stay (definition of the
+     * magnitude scale), repeated three times as the Teff moves a little with the star's class. Returns the star;
+     * {@code nominal} receives its analytic result.
+     */
+    private static StarInput twinNearTheMassRelationsFaintEnd(DeriveSettings s, double plx, double sig, double lumOverLmin,
+                                                              StarResult nominal) {
+        StarInput in = StarDeriverTest.solarTwinAt10pc().parallax(plx, sig);
+        double target = lumOverLmin * Math.pow(10, MassLuminosityEker2018.LOGL_MIN);
+        for (int round = 0; round < 3; round++) {
+            double shift = 2.5 * Math.log10(new StarDeriver(s).derive(in, nominal).lumLsun / target);
+            for (int k = 0; k < Band.COUNT; k++) {
+                if (in.hasMag[k]) {
+                    in.mag[k] += shift;
+                }
+            }
+        }
+        new StarDeriver(s).derive(in, nominal);
+        assertEquals(target, nominal.lumLsun, 1e-3 * target);
+        return in;
+    }
+
+    /** Settings that give the inverse parallax 1/ϖ at any ϖ/σ (no distance withheld). */
+    private static DeriveSettings inverseAtAnySignificance() {
+        return DeriveSettings.builder().distanceSnrMin(0).distanceMethod(DeriveSettings.DistanceMethod.INVERSE).build();
+    }
+
+    @Test
+    void aLowSignificanceInverseParallaxIsRedrawnWhileNotPositive() {
+        // ϖ = 1 ± 2 mas taken as 1/ϖ: a draw is 1/ϖ' with ϖ' ~ N(ϖ, σ) redrawn while ϖ' ≤ 0 (class Javadoc), i.e. ϖ'
+        // from the normal law truncated to ϖ' > 0, where 31 % of the first tries fall. d = 1/ϖ' is decreasing, so
+        // P(d ≤ x) = P(ϖ' ≥ 1/x | ϖ' > 0) = (1 − Φ((1/x − ϖ)/σ)) / (1 − Φ(−ϖ/σ)), Φ from Commons Math. Each drawn
+        // percentile must sit at its probability in that law within 4 standard errors of a sample quantile of n
+        // draws, √(p(1 − p)/n) in probability (asymptotic law of sample quantiles; common practice). Without the
+        // redraws a draw with ϖ' ≤ 0 would fall back on the nominal 1000 pc: the median would sit at P = 0.72.
+        double plx = 1.0;
+        double sig = 2.0;
+        int n = 256;
+        DeriveSettings s = inverseAtAnySignificance();
+        StarResult b = new StarResult();
+        StarInput in = twinNearTheMassRelationsFaintEnd(s, plx, sig, 30, b);
+        assertEquals(StarResult.DistanceMethod.INVERSE_PARALLAX, b.distMethod);
+        assertEquals(1000.0, b.distPc, 1e-9);
+        NormalDistribution w = new NormalDistribution(plx, sig);
+        double positive = 1 - w.cumulativeProbability(0);
+        double[][] q = run(new MonteCarloDeriver(s, n, 3), in);
+        double[] p = {StarDeriver.P16, 0.5, StarDeriver.P84};
+        for (int k = 0; k < 3; k++) {
+            double at = (1 - w.cumulativeProbability(1000 / q[0][k])) / positive;
+            assertEquals(p[k], at, 4 * Math.sqrt(p[k] * (1 - p[k]) / n), "distance percentile " + k + ": " + q[0][k] + " pc");
+        }
+        assertFalse(Double.isNaN(q[1][1]) || Double.isNaN(q[2][1]), "Teff and L are drawn too");
+    }
+
+    @Test
+    void aQuantityMostDrawsLackGetsNoPercentilesThoughTheNominalStarHasIt() {
+        // Class Javadoc: percentiles only over the draws that gave a value, none if fewer than half did. The same
+        // low-significance star (ϖ = 1 ± 2 mas, inverse parallax, 1000 pc nominal) made 2.25 times as luminous as the
+        // faint end of the Eker et al. 2018 relation: it has a mass, but a draw below the distance
+        // d_c = 1000 pc / √2.25 = 667 pc falls below the relation and has none. P(d ≥ d_c) = P(0 < ϖ' ≤ 1.5 mas) /
+        // P(ϖ' > 0) = 0.42 (Commons Math's Φ): most draws have no mass (and no log g), so neither has percentiles;
+        // Teff and L, which every draw has, do.
+        double plx = 1.0;
+        double sig = 2.0;
+        DeriveSettings s = inverseAtAnySignificance();
+        StarResult b = new StarResult();
+        StarInput in = twinNearTheMassRelationsFaintEnd(s, plx, sig, 2.25, b);
+        assertEquals(LuminosityClass.MAIN_SEQUENCE, b.lumClass);
+        assertFalse(Double.isNaN(b.massMsun) || Double.isNaN(b.loggCgs), "the nominal star has a mass and a log g");
+        NormalDistribution w = new NormalDistribution(plx, sig);
+        double withMass = (w.cumulativeProbability(plx * Math.sqrt(2.25)) - w.cumulativeProbability(0))
+                / (1 - w.cumulativeProbability(0));
+        assertTrue(withMass > 0.38 && withMass < 0.46, "share of draws with a mass: " + withMass);
+        double[][] q = run(new MonteCarloDeriver(s, 256, 3), in);
+        for (int k : new int[] {4, 5}) {
+            assertTrue(Double.isNaN(q[k][0]) && Double.isNaN(q[k][1]) && Double.isNaN(q[k][2]),
+                    MonteCarloDeriver.QUANTITIES[k] + " from fewer than half the draws: " + q[k][1]);
+        }
+        for (int k : new int[] {0, 1, 2, 3}) {
+            assertFalse(Double.isNaN(q[k][0]) || Double.isNaN(q[k][2]), MonteCarloDeriver.QUANTITIES[k]);
+        }
+    }
+
+    @Test
+    void aQuantityTheNominalStarLacksGetsNoPercentilesThoughMostDrawsHaveIt() {
+        // Class Javadoc: a quantity the analytic chain does not give gets no percentiles. ϖ = 1 ± 0.5 mas with the
+        // posterior's mode reported (Bailer-Jones 2015; 1500 pc, ChainStepsTest) and the twin made 1/1.8 as luminous
+        // as the faint end of the Eker et al. 2018 relation there: no mass, no log g. A draw beyond
+        // d_c = 1500 pc × √1.8 = 2012 pc is bright enough for a mass; the posterior's 16th and 50th percentiles,
+        // integrated independently (ChainStepsTest), bracket d_c, so more than half the draws (about two thirds)
+        // have a mass, and still none may be reported.
+        double plx = 1.0;
+        double sig = 0.5;
+        DeriveSettings s = DeriveSettings.builder().distanceSnrMin(0).posteriorPercentiles(false).build();
+        StarResult b = new StarResult();
+        StarInput in = twinNearTheMassRelationsFaintEnd(s, plx, sig, 1 / 1.8, b);
+        assertEquals(StarResult.DistanceMethod.EDSD_MODE, b.distMethod);
+        assertEquals(LuminosityClass.MAIN_SEQUENCE, b.lumClass);
+        assertTrue(Double.isNaN(b.massMsun) && Double.isNaN(b.loggCgs), "below the relation: no mass");
+        double dc = b.distPc * Math.sqrt(1.8);
+        double[] post = ChainStepsTest.posteriorPercentilesPc(plx, sig, DeriveSettings.PRIOR_LENGTH_KPC_DEFAULT);
+        assertTrue(post[0] < dc && dc < 0.85 * post[1], "d_c " + dc + " pc against the posterior's 16/50 % " + post[0]
+                + ", " + post[1]);
+        double[][] q = run(new MonteCarloDeriver(s, 256, 3), in);
+        for (int k : new int[] {4, 5}) {
+            assertTrue(Double.isNaN(q[k][0]) && Double.isNaN(q[k][1]) && Double.isNaN(q[k][2]),
+                    MonteCarloDeriver.QUANTITIES[k] + " the nominal star lacks: " + q[k][1]);
+        }
+        assertFalse(Double.isNaN(q[2][0]) || Double.isNaN(q[3][2]), "L and R are given");
+    }
+
+    @Test
+    void withOneRelationEnabledTheTeffSpreadIsItsPublishedScatter() {
+        // only C10 B−V enabled (Casagrande et al. 2010, Table 4: σ = 73 K) and only the relations' scatter on: every
+        // draw shifts that one relation by N(0, 73 K), so half the 16–84 % range is 73 K (a Gaussian's; common
+        // practice) within 25 %, 4 standard errors of that half-range for 256 draws (0.067 σ: asymptotic law of sample
+        // quantiles, common practice). The relation is the only one the star draws: the one slot there is.
+        DeriveSettings s = DeriveSettings.builder().relations(List.of("C10/B-V")).build();
+        StarInput in = twoBands(Band.B, Band.V);
+        MonteCarloDeriver mc = new MonteCarloDeriver(s, 256, 5);
+        mc.errorSources(1L << ErrorSource.SCATTER);
+        double[][] q = run(mc, in);
+        assertEquals(73.0, (q[1][2] - q[1][0]) / 2, 0.25 * 73, "Teff spread");
+        StarResult b = new StarDeriver(s).derive(in, new StarResult());
+        assertEquals("C10/B-V", b.teffFrom());
+        assertEquals(b.teffK, q[1][1], 0.25 * 73, "median Teff");
+    }
+
+    @Test
+    void aStarWithoutDistanceDrawsTheAssumedLoggOfItsGaiaRelation() {
+        // The G dwarf seen in Gaia-like bands and 2MASS of ErrorSourceTest moved from 100 pc to 1.43 pc (every magnitude
+        // 5 log10(100/1.43) brighter: distance modulus, common practice), with a poor parallax, 700 ± 300 mas: ϖ/σ 2.3
+        // is below distance_snr_min (5, README), so no distance and no class. Its Teff comes from the Casagrande et al.
+        // 2021 relations at an assumed log g, itself an error source for such a star (ErrorSource LOGG): with only that
+        // source on, half the 16–84 % range must be the first-order error (a Gaussian's half-range is its σ, common
+        // practice; the C21 relations are linear in log g) within 25 %, 4 standard errors of that half-range for 256
+        // draws (0.067 σ: asymptotic law of sample quantiles, common practice).
+        StarInput in = ErrorSourceTest.stars().get(0).parallax(700, 300);
+        for (int k = 0; k < Band.COUNT; k++) {
+            if (in.hasMag[k]) {
+                in.mag[k] -= 5 * Math.log10(100 / 1.43);
+            }
+        }
+        long logg = 1L << ErrorSource.LOGG;
+        StarDeriver first = new StarDeriver(DeriveSettings.defaults());
+        first.errorSources(logg);
+        StarResult b = first.derive(in, new StarResult());
+        assertEquals(StarResult.DistanceMethod.NONE, b.distMethod);
+        assertNull(b.lumClass);
+        assertTrue(b.teffFrom().contains("C21/BP-RP/dwarf"), b.teffFrom());
+        assertTrue(b.teffErrK > 10, "the assumed log g moves the Teff: " + b.teffErrK);
+        MonteCarloDeriver mc = new MonteCarloDeriver(DeriveSettings.defaults(), 256, 5);
+        mc.errorSources(logg);
+        double[][] q = run(mc, in);
+        assertEquals(b.teffErrK, (q[1][2] - q[1][0]) / 2, 0.25 * b.teffErrK, "Teff spread from the assumed log g");
+        assertEquals(b.teffK, q[1][1], 0.25 * b.teffErrK, "median Teff");
     }
 }
