@@ -181,6 +181,9 @@ class StarDeriverTest {
         assertEquals(0.93009, r.angDiamMas, 0.03);
         assertTrue(Double.isNaN(r.lumLsun) && Double.isNaN(r.distPc));
         assertNull(r.lumClass);
+        // class unknown: no surface-brightness cross-check, whose relation holds for dwarfs and subgiants only
+        // (Kervella et al. 2004), although V and Ks are measured
+        assertTrue(Double.isNaN(r.angDiamSbrMas), "θ_SB " + r.angDiamSbrMas);
     }
 
     @Test
