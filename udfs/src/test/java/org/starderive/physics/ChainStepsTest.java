@@ -394,6 +394,15 @@ class ChainStepsTest {
         StarResult above = new StarDeriver(DeriveSettings.builder().hotTeffErrFracMax(frac * 1.001).build()).derive(in, new StarResult());
         assertTrue(below.has(HOT_TEFF_UNCERTAIN), "threshold just below the error fraction " + frac);
         assertFalse(above.has(HOT_TEFF_UNCERTAIN), "threshold just above the error fraction " + frac);
+        // a Teff error exactly at the threshold does not exceed it (README flag table: "exceeds"): the threshold
+        // nearest the fraction whose product with Teff is the error to the last bit
+        double exact = frac;
+        for (double t : new double[] {Math.nextUp(frac), Math.nextDown(frac)}) {
+            exact = exact * r.teffK == r.teffErrK ? exact : t;
+        }
+        assertEquals(r.teffErrK, exact * r.teffK, 0.0, "no threshold hits the error exactly");
+        assertFalse(new StarDeriver(DeriveSettings.builder().hotTeffErrFracMax(exact).build()).derive(in, new StarResult())
+                .has(HOT_TEFF_UNCERTAIN), "an error equal to the threshold");
         // a cool star is never judged by it, however small the threshold
         StarResult twin = new StarDeriver(DeriveSettings.builder().hotTeffErrFracMax(1e-6).build()).derive(sunAt(100, 0.01), new StarResult());
         assertFalse(twin.has(HOT_TEFF_UNCERTAIN));

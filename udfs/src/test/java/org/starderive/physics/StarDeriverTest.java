@@ -89,18 +89,22 @@ class StarDeriverTest {
         assertEquals(rv * ebv, r.avMag, 1e-12);
     }
 
-    @Test
-    void aGiantIsClassedEvolvedAndGetsNoMass() throws Exception {
-        // a red giant of 4700 K and 10 R_sun at 500 pc, its V-Ks made with the giant relation (round trip)
+    /** A red giant of 4700 K and 10 R_sun at 500 pc, its V-Ks made with the giant relation (round trip). */
+    static StarInput giantAt500pc() {
         double teff = 4700;
         TeffRelation giantVKs = TeffRelations.byId("GHB09/V-Ks");
         double vks = new BrentSolver(1e-10).solve(100, x -> giantVKs.teff(x, 0, 2.5) - teff, 1.2, 3.3);
         double lum = 100 * Math.pow(teff / Iau2015.TEFF_SUN_K, 4);
         double mbol = BolometricCorrectionFlower1996.MBOL_SUN - 2.5 * Math.log10(lum);
         double v = mbol - BolometricCorrectionFlower1996.bcV(teff) + 5 * Math.log10(500 / 10.0);
-        StarInput in = new StarInput().parallax(2.0, 0.01).magnitude(Band.V, v, 0.01).magnitude(Band.KS, v - vks, 0.01)
+        return new StarInput().parallax(2.0, 0.01).magnitude(Band.V, v, 0.01).magnitude(Band.KS, v - vks, 0.01)
                 .ebv(0, 0).feh(0, 0.1);
-        StarResult r = deriver.derive(in, out);
+    }
+
+    @Test
+    void aGiantIsClassedEvolvedAndGetsNoMass() {
+        double teff = 4700;
+        StarResult r = deriver.derive(giantAt500pc(), out);
         assertEquals(LuminosityClass.EVOLVED, r.lumClass);
         assertEquals(Regime.GIANT, r.regime, "a giant relation gave its Teff: the giant regime (Regime table)");
         assertEquals("GHB09/V-Ks", r.teffFrom());
@@ -177,6 +181,9 @@ class StarDeriverTest {
         assertEquals(0.93009, r.angDiamMas, 0.03);
         assertTrue(Double.isNaN(r.lumLsun) && Double.isNaN(r.distPc));
         assertNull(r.lumClass);
+        // class unknown: no surface-brightness cross-check, whose relation holds for dwarfs and subgiants only
+        // (Kervella et al. 2004), although V and Ks are measured
+        assertTrue(Double.isNaN(r.angDiamSbrMas), "θ_SB " + r.angDiamSbrMas);
     }
 
     @Test
@@ -469,6 +476,10 @@ class StarDeriverTest {
         double x = 10.2 - 8.6;
         r = draw(d, k, z, LuminosityClass.MAIN_SEQUENCE, 4.0);
         assertEquals(teffC21BpRp(x, 4.0, 0), r.teffK, 1e-6);
+        // a class without a log g (a dwarf outside the mass relations): the solar value, log g⊙ = 4.438 (relations.md
+        // section 1), moved by nothing here (z = 0)
+        r = draw(d, k, z, LuminosityClass.MAIN_SEQUENCE, Double.NaN);
+        assertEquals(teffC21BpRp(x, 4.438, 0), r.teffK, 0.0005 * Math.abs(teffC21BpRp(x, 5, 0) - teffC21BpRp(x, 4, 0)));
         // no class given: log g⊙ moved by z σ_logg, the σ_logg of the first-order path (its Teff error with only the
         // log g source on is |∂Teff/∂log g| σ_logg); C21 is linear in log g
         d.errorSources(1L << ErrorSource.LOGG);
@@ -479,6 +490,40 @@ class StarDeriverTest {
         z[ErrorSource.LOGG] = 1;
         r = draw(d, k, z, null, Double.NaN);
         assertEquals(teffC21BpRp(x, 4.438, 0) + Math.signum(slope) * errK, r.teffK, 0.0005 * Math.abs(slope));
+    }
+
+    @Test
+    void aDrawGivesValuesOnlyAndNoDiameterCrossCheck() {
+        // StarDeriver.deriveDraw: "Values only, no errors"; the surface-brightness cross-check flags the nominal star
+        // only. The twin at 10 pc with Ks 0.4 mag too bright: its Kervella et al. 2004 diameter is 29 % larger
+        // (ChainStepsTest), so the nominal star is flagged DIAMETER_DISAGREE
+        StarInput in = ChainStepsTest.sunAt(100, 0.01);
+        in.hasMag[Band.J.ordinal()] = false;
+        in.mag[Band.KS.ordinal()] -= 0.4;
+        StarDeriver d = new StarDeriver(DeriveSettings.defaults());
+        StarResult nominal = d.derive(in, new StarResult());
+        assertTrue(nominal.has(DIAMETER_DISAGREE) && nominal.angDiamSbrMas > 0, QualityFlag.names(nominal.flags).toString());
+        StarResult r = draw(d, in, new double[ErrorSource.COUNT], LuminosityClass.MAIN_SEQUENCE, nominal.loggCgs);
+        assertTrue(r.teffK > 0 && r.lumLsun > 0 && r.radiusRsun > 0 && r.massMsun > 0 && r.angDiamMas > 0);
+        for (double e : new double[] {r.teffErrK, r.lumErrLsun, r.radiusErrRsun, r.massErrMsun, r.loggErrCgs,
+                r.angDiamErrMas, r.mbolErrMag}) {
+            assertTrue(Double.isNaN(e), "a draw carries no error, got " + e);
+        }
+        assertTrue(Double.isNaN(r.angDiamSbrMas), "no cross-check in a draw: " + r.angDiamSbrMas);
+        assertFalse(r.has(DIAMETER_DISAGREE));
+    }
+
+    @Test
+    void aGiantCoolerThan4000KIsNotJudgedByTheDwarfsBcRule() {
+        // README flag table, BC_UNRELIABLE: a BC outside its calibration, or the BC of a *dwarf* below 4000 K. A giant
+        // with V−J 4.0 (beyond the GHB09 range; extrapolation switched on) is about 3760 K: its BC (Flower 1996,
+        // calibrated 2900–52000 K) is used, in range, and it is no dwarf
+        StarInput in = new StarInput().parallax(2.0, 0.01).magnitude(Band.V, 10, 0.01).magnitude(Band.J, 6.0, 0.01)
+                .ebv(0, 0).feh(0, 0.1);
+        StarResult r = new StarDeriver(DeriveSettings.builder().allowExtrapolation(true).build()).derive(in, out);
+        assertEquals(LuminosityClass.EVOLVED, r.lumClass);
+        assertTrue(r.teffK > 2900 && r.teffK < 4000 && !Double.isNaN(r.bcV), "Teff " + r.teffK + ", BC " + r.bcV);
+        assertEquals(TEFF_EXTRAPOLATED.mask() | MASS_NOT_APPLICABLE.mask(), r.flags, QualityFlag.names(r.flags).toString());
     }
 
     @Test
