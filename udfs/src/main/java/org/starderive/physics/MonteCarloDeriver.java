@@ -102,8 +102,10 @@ public final class MonteCarloDeriver {
         if (!chain) {
             // no Teff from the measured colours: only the distance has a distribution to sample
             if (haveDistribution) {
+                // the distance source switched off (tests only) leaves the nominal distance, as in the chain's draws
+                boolean drawMu = (deriver.errorSources() & (1L << ErrorSource.MU)) != 0;
                 for (int d = 0; d < draws; d++) {
-                    add(0, drawDistance(posterior, p, sp, rng, g));
+                    add(0, drawMu ? drawDistance(posterior, p, sp, rng, g) : b.distPc);
                 }
             }
             finish(b, out);

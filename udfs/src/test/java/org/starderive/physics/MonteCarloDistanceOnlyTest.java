@@ -48,6 +48,19 @@ class MonteCarloDistanceOnlyTest {
     }
 
     @Test
+    void theDistanceSourceSwitchedOffLeavesAStarWithoutTeffItsNominalDistance() {
+        // StarDeriver#errorSources: the switch acts "in both paths"; with every source off a draw is the nominal star
+        // (as MonteCarloDeriverTest checks for stars with a Teff), so the percentiles are 1/ϖ = 100 pc exactly
+        MonteCarloDeriver mc = new MonteCarloDeriver(DeriveSettings.defaults(), 64, 7);
+        mc.errorSources(0L);
+        double[][] out = new double[MonteCarloDeriver.NQ][3];
+        mc.percentiles(new StarInput().parallax(10, 1), 42, out);
+        for (int k = 0; k < 3; k++) {
+            assertEquals(100.0, out[0][k], 1e-9, "distance percentile " + k + " with the distance source off");
+        }
+    }
+
+    @Test
     void aStarWithoutTeffSpendsItsRandomNumbersOnItsDistanceAlone() {
         // Class Javadoc: a star without a Teff only has its distance sampled, without the rest of the chain, from its
         // own stream, Commons RNG's XoRoShiRo128++ at the star seed (for run seed 1: output 1 of a SplitMix64 seeded
