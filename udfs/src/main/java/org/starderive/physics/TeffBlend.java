@@ -172,10 +172,17 @@ final class TeffBlend {
         // the weights move with the estimates they are judged by: d(blend) = Σ w dT + (T_other − T_fgk) dw
         double dWm = wf > 0 && wm > 0 ? Regime.dMDwarfWeight(m.mean) : 0;
         double dWh = wf > 0 && wh > 0 ? Regime.dHotWeight(h.mean) : 0;
+        // M-dwarf and hot estimates without an FGK share (clipped to 0): the weights a, b normalised by their sum S, so
+        // d(b/S) = (a db − b da)/S² = (wm db − wh da)/S, with da, db the ramps' slopes times each estimate's own change
+        boolean mixMH = wf == 0 && wm > 0 && wh > 0;
+        double dA = mixMH ? Regime.dMDwarfWeight(m.mean) : 0;
+        double dB = mixMH ? Regime.dHotWeight(h.mean) : 0;
         for (int j = 0; j < NSRC; j++) {
-            dwM[j] = dWm * m.c[j];
+            double dwHot = mixMH ? (wm * dB * h.c[j] - wh * dA * m.c[j]) / sum : 0;
+            dwM[j] = mixMH ? -dwHot : dWm * m.c[j];
             c[j] = (wf > 0 ? wf * f.c[j] : 0) + (wm > 0 ? wm * m.c[j] : 0) + (wh > 0 ? wh * h.c[j] : 0)
-                    + (dWm != 0 ? dWm * (m.mean - f.mean) * m.c[j] : 0) + (dWh != 0 ? dWh * (h.mean - f.mean) * h.c[j] : 0);
+                    + (dWm != 0 ? dWm * (m.mean - f.mean) * m.c[j] : 0) + (dWh != 0 ? dWh * (h.mean - f.mean) * h.c[j] : 0)
+                    + (mixMH ? (h.mean - m.mean) * dwHot : 0);
         }
         c[ErrorSource.BLEND] = s.on(ErrorSource.BLEND) ? spreadT : 0;
         err = StarDeriver.norm(c);

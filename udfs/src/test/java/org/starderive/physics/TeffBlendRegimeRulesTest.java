@@ -18,7 +18,6 @@ import static org.starderive.physics.TeffEstimatorTest.partials;
 
 import java.util.List;
 import java.util.stream.Collectors;
-import org.junit.jupiter.api.Disabled;
 import org.junit.jupiter.api.Test;
 import org.starderive.physics.TeffEstimatorTest.Rel;
 
@@ -199,9 +198,6 @@ class TeffBlendRegimeRulesTest {
      * their temperatures (the class states that the weights' own derivatives enter the first-order errors).
      */
     @Test
-    @Disabled("bug: with the FGK share clipped to 0, TeffBlend holds the M-dwarf and hot weights fixed (dWm = dWh = 0 "
-            + "when wf = 0); their normalised weights move: c_B is -31.0 K, the typed mixture's -154.8 K (J: 7.3 vs 156.1 K, "
-            + "E(B-V): 39.1 vs 328.9 K)")
     void mDwarfAndHotMixtureErrorsCarryBothMovingWeights() {
         StarState s = mannAndFlowerColours();
         TeffBlend b = blended(s, 4.5);
@@ -212,7 +208,8 @@ class TeffBlendRegimeRulesTest {
         });
         double[] g = partials(List.of(mixture), s, 4.5, 0)[0];
         for (int q = 0; q <= ErrorSource.FEH; q++) {
-            assertEquals(g[q], b.c[q], 1e-5, "contribution of " + ErrorSource.name(q));
+            // central differences of a curved mixture: good to about 1e-6 relative here (1e-5 allowed; common practice)
+            assertEquals(g[q], b.c[q], 1e-5 * Math.abs(g[q]) + 1e-5, "contribution of " + ErrorSource.name(q));
         }
     }
 
