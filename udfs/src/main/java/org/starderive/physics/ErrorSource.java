@@ -15,7 +15,9 @@ package org.starderive.physics;
  * EBV           E(B−V) error; without one, physics.ebv_err_default   E(B−V) (clipped at 0 in a draw)
  * FEH           [Fe/H] error; without one or with no [Fe/H],         [Fe/H] (the assumed value carries its spread)
  *               physics.feh_err_default
- * LOGG          log g prior error of evolved stars                   the log g of the Gaia-band relations (evolved)
+ * LOGG          log g prior error of evolved stars; for a star not   the log g of the Gaia-band relations (evolved,
+ *               yet classed, the 0.3 dex of its solar start (our      or the solar start of an unclassed star)
+ *               choice)
  * SCATTER       each FGK-dwarf or giant colour relation's own        that relation's Teff
  *               scatter, independent between relations (one z per
  *               relation in a draw)

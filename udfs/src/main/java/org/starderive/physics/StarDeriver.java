@@ -103,8 +103,9 @@ public final class StarDeriver {
      * One Monte Carlo draw: the chain with the distance fixed to {@code distPc} (NaN: computed as usual), each
      * enabled relation's Teff shifted by {@code teffOffsetK[k]} (its scatter and zero point drawn by the caller), every
      * other error source j perturbed by {@code z[j]} times its σ ({@link ErrorSource}), keeping the star's class
-     * {@code cls} (null: classified as usual) and starting the log g iteration of the Gaia-band relations at
-     * {@code logg} (NaN: the solar value). Values only, no errors.
+     * {@code cls} (null: classified as usual) and, for a main-sequence {@code cls}, starting the log g iteration of
+     * the Gaia-band relations at {@code logg} (NaN, or no class: the solar value, drawn by its start error). Values
+     * only, no errors.
      */
     StarResult deriveDraw(StarInput in, StarResult out, double distPc, double[] teffOffsetK, double[] z,
                           LuminosityClass cls, double logg) {
