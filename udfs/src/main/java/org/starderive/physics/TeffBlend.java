@@ -126,7 +126,12 @@ final class TeffBlend {
         // estimate would be a relation used outside its regime (a late M dwarf without V or BP otherwise gets
         // 4300-5300 K from J-Ks); with no M-dwarf estimate the star gets no Teff (COLOUR_OUT_OF_RANGE)
         boolean redderThanMain = f.tUpper <= Regime.M_BLEND_LO_K;
-        double wf = f.n > 0 && !redderThanMain ? 1 - wm - wh : 0;
+        // the same on the blue side: a colour beyond the blue edge of the FGK (or giant) relations by more than twice
+        // its error, at an edge hotter than HOT_BLEND_HI_K, puts the star where only the hot regime holds. Without
+        // this, allow_extrapolation let a B star whose Flower Teff fails the sanity cap (B-V < -0.34 gives > 50 kK)
+        // take the C10 B-V relation extrapolated from its edge at 0.18 (12-16 kK at B-V -0.35...-0.5)
+        boolean bluerThanMain = f.tLower >= Regime.HOT_BLEND_HI_K;
+        double wf = f.n > 0 && !redderThanMain && !bluerThanMain ? 1 - wm - wh : 0;
         if (wf < 0) {
             wf = 0;
         }

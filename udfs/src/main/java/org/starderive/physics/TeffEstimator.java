@@ -216,10 +216,10 @@ final class TeffEstimator {
      * windowed relation may give (its own window, or the blend zone's upper edge).
      *
      * <p>In a Monte Carlo draw ({@link StarState#valuesOnly}) only what the draw's value needs is computed: the mean,
-     * the mask, n, the flags of the colours and the FGK and giant relations' red-edge bound (tUpper: a bound below
-     * the M-dwarf regime's edge decides which regime a star is in, see {@link TeffBlend}); not the other bounds (they
-     * only flag the nominal estimate), the gradients or the first-order contributions. The mean is the same to the
-     * last bit either way.
+     * the mask, n, the flags of the colours and the FGK and giant relations' edge bounds (tUpper below the M-dwarf
+     * regime's edge, tLower above the hot regime's, decide which regime a star is in, see {@link TeffBlend}); not the
+     * other regimes' bounds (they only flag the nominal estimate), the gradients or the first-order contributions.
+     * The mean is the same to the last bit either way.
      */
     void estimate(Regime regime, double logg, double sLogg, double[] offsets, double teffMaxK) {
         clear();
@@ -242,9 +242,9 @@ final class TeffEstimator {
         int ji = Band.J.ordinal();
         int hi = Band.H.ordinal();
         int[] ofRegime = byRegime[regime.ordinal()];
-        // a draw needs only the red-edge bound of the FGK and giant relations (it decides the regime, TeffBlend);
-        // the other bounds only flag the nominal estimate
-        boolean redBoundDecidesRegime = regime == Regime.FGK_DWARF || regime == Regime.GIANT;
+        // a draw needs only the edge bounds of the FGK and giant relations (they decide the regime, TeffBlend);
+        // the other regimes' bounds only flag the nominal estimate
+        boolean boundsDecideRegime = regime == Regime.FGK_DWARF || regime == Regime.GIANT;
         for (int kk = 0; kk < ofRegime.length; kk++) {
             int k = ofRegime[kk];
             TeffRelation r = relations[k];
@@ -272,11 +272,11 @@ final class TeffEstimator {
             if (!in) {
                 anyOut = true;
             }
-            if (!in && (!vo || redBoundDecidesRegime)) {
+            if (!in && (!vo || boundsDecideRegime)) {
                 double margin = 2 * Math.sqrt(sx2);
                 if (x > r.colourMax() + margin) {
                     tUpper = Math.min(tUpper, r.teff(r.colourMax(), feh, logg, aux));
-                } else if (!vo && x < r.colourMin() - margin) {
+                } else if (x < r.colourMin() - margin) {
                     tLower = Math.max(tLower, r.teff(r.colourMin(), feh, logg, aux));
                 }
             }

@@ -438,4 +438,69 @@ class TeffBlendRegimeRulesTest {
         assertEquals(Regime.FGK_DWARF, b.regime);
         assertTrue(b.anyColour);
     }
+    /**
+     * The blue-edge rule, the red-edge rule's mirror: a B−V beyond the blue edge 0.18 of the Casagrande et al. 2010
+     * B−V relation (published range 0.18–1.29) by more than twice its error, where that edge is hotter than the hot
+     * zone's top (C10 at 0.18: θ = 0.5665 + 0.4809·0.18 − 0.0060·0.18² → 7720 K, typed), leaves only the hot regime.
+     * B−V −0.45 is inside Flower's nominal range (−0.40…0.50, extrapolated a little) but Flower 1996 / Torres 2010
+     * gives 278,000 K there — above the sanity cap and far above the calibration stars' 52,500 K (ReadMe of the
+     * catalogue, relations.md section 12): the star gets no Teff, also with extrapolation on, rather than the C10
+     * relation extrapolated 0.63 mag beyond its edge (12–16 kK, as it did before this rule). B−V −0.30 still gets
+     * Flower's 33.6 kK. The same in a Monte Carlo draw (values only), which must see the same bound.
+     */
+    @Test
+    void aColourBeyondTheBlueEdgeLeavesOnlyTheHotRegimeAlsoWhenExtrapolating() {
+        DeriveSettings extrapolate = DeriveSettings.builder().allowExtrapolation(true).build();
+        double c10EdgeK = 5040.0 / (0.5665 + 0.4809 * 0.18 - 0.0060 * 0.18 * 0.18); // Casagrande et al. 2010, typed
+        assertTrue(c10EdgeK > Regime.HOT_BLEND_HI_K, "the C10 B−V blue edge lies above the hot zone: " + c10EdgeK);
+        assertEquals(c10EdgeK, TeffEstimatorTest.C10_BV.t().teffK(bAndV(0.18).m0, 0, 4.3), 1e-6, "typed twice alike");
+        assertTrue(flowerK(-0.45) > 60_000, "Flower at B−V −0.45: " + flowerK(-0.45));
+
+        for (boolean draw : new boolean[] {false, true}) {
+            StarState blue = bAndV(-0.45);
+            blue.valuesOnly = draw;
+            TeffBlend b = estimated(blue, extrapolate, 4.3);
+            assertTrue(Double.isNaN(b.mean), "B−V −0.45, draw " + draw + ": no Teff, got " + b.mean);
+            assertEquals(0L, b.relationMask);
+            assertTrue(b.anyColour, "the colour was there (COLOUR_OUT_OF_RANGE, not no colour)");
+
+            StarState hot = bAndV(-0.30);
+            hot.valuesOnly = draw;
+            b = estimated(hot, extrapolate, 4.3);
+            assertEquals(flowerK(-0.30), b.mean, 1e-6 * b.mean, "B−V −0.30, draw " + draw);
+            assertEquals(33_617, b.mean, 1, "Flower 1996 / Torres 2010 at −0.30, evaluated apart from the coefficients of relations.md section 12");
+            assertEquals(Regime.HOT, b.regime);
+            assertEquals(bits("F96/B-V"), b.relationMask);
+        }
+    }
+
+    /**
+     * The blue-edge rule without B and V: an A star of about 8400 K seen in G, BP, RP and Ks only. BP−RP 0.10 lies
+     * 0.10 mag beyond the blue edge 0.20 of the Casagrande et al. 2021 dwarf BP−RP relation (published range), an edge
+     * hotter than the hot zone's top (typed copy below); G−Ks 0.35 is inside the C21 dwarf G−Ks range and gives a
+     * temperature ~500 K too cool, read near the relation's blue end. With only Flower's B−V in the hot regime, the
+     * star gets no Teff (COLOUR_OUT_OF_RANGE), in a draw too, rather than the cool G−Ks value without a warning.
+     * Without the BP−RP colour the same G−Ks is used as before (the rule needs a colour beyond the edge).
+     */
+    @Test
+    void aGaiaColourBeyondTheBlueEdgeLeavesNoTeffWithoutBAndV() {
+        double edgeK = TeffEstimatorTest.C21_BPRP.t().teffK(oneColour(Band.BP, Band.RP, 0.20).m0, 0, 4.3);
+        assertTrue(edgeK > Regime.HOT_BLEND_HI_K, "C21 dwarf BP−RP at its blue edge 0.20, typed: " + edgeK);
+        for (boolean draw : new boolean[] {false, true}) {
+            StarState s = emptyState();
+            band(s, Band.G, 10.0, 0.003, 0);
+            band(s, Band.BP, 10.05, 0.003, 0);
+            band(s, Band.RP, 9.95, 0.003, 0);
+            band(s, Band.KS, 9.65, 0.02, 0);
+            s.valuesOnly = draw;
+            TeffBlend b = estimated(s, DeriveSettings.defaults(), 4.3);
+            assertTrue(Double.isNaN(b.mean), "BP−RP 0.10, draw " + draw + ": no Teff, got " + b.mean);
+            assertTrue(b.anyColour);
+
+            StarState gks = oneColour(Band.G, Band.KS, 0.35);
+            gks.valuesOnly = draw;
+            b = estimated(gks, DeriveSettings.defaults(), 4.3);
+            assertEquals(TeffEstimatorTest.C21_GK.t().teffK(gks.m0, 0, 4.3), b.mean, 1e-6, "G−Ks alone, draw " + draw);
+        }
+    }
 }
