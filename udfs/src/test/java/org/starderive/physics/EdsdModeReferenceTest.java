@@ -27,10 +27,10 @@ class EdsdModeReferenceTest {
 
     @Test
     void aNullParallaxMeasuredToATenthOfAMicroarcsecondHasItsModeToTwelveDigits() {
-        // reference: Brent root of the Bailer-Jones 2015 cubic (above). With ϖ = 0 and σ of 0.05-0.1 µas the mode is
-        // far out, r ≈ (L/σ²)^(1/3) ≈ 500 kpc, where r³/L nearly cancels 1/σ²: the closed form (two cube roots of
-        // numbers that nearly cancel) is off by ~1e-6 there, so two full Newton steps on the exact derivative are
-        // needed to reach 1e-12
+        // reference: Brent root of the Bailer-Jones 2015 cubic (above). With ϖ = 0 and σ of 0.05-0.2 µas the mode is
+        // far out, r ≈ (L/σ²)^(1/3) ≈ 300-800 kpc, where r³/L nearly cancels 1/σ²: the closed form (two cube roots of
+        // numbers that nearly cancel) is off by 1e-7 to 3e-6 there, so two full Newton steps on the exact derivative
+        // are needed to reach 1e-12
         for (double s : new double[] {5e-5, 8e-5, 9e-5, 1e-4, 2e-4}) {
             double ref = modeOfNonPositiveParallaxKpc(0, s, L);
             assertEquals(ref, ParallaxDistance.edsdModeKpc(0, s, L), 1e-12 * ref, "sigma=" + s);
@@ -65,9 +65,10 @@ class EdsdModeReferenceTest {
     @Test
     void anErrorOfDegreesLeavesThePriorWhoseModeIsTwiceTheLengthScale() {
         // with σ of 1e8 mas (about 28 degrees) the likelihood is flat and the posterior is the prior r² e^(−r/L),
-        // whose mode is 2L (Bailer-Jones 2015, PASP 127, 994); the likelihood moves it by ~|ϖ|/σ² ≈ 1e-14 kpc. The other
-        // two roots of the cubic are a complex pair of modulus 1/(σ√2) ≈ 1e-8 kpc, so near a double root at 0 that the
-        // sign of the discriminant is lost to rounding: the cases below are ones where it comes out ≤ 0
+        // whose mode is 2L (Bailer-Jones 2015, PASP 127, 994; d/dr of 2 ln r − r/L vanishes there); the likelihood moves
+        // it by less than 1e-14 kpc. The other two roots of the cubic are a complex pair of modulus 1/(σ√2) ≈ 1e-8 kpc,
+        // so near a double root at 0 that the sign of the discriminant is lost to rounding: the cases below are ones
+        // where it comes out ≤ 0
         double[][] cases = {{-81, 1e8}, {-61, 1e8}, {27, 1e8}, {31, 1e8}, {-74, 1.5e8}, {57, 1.5e8}, {65, 1.5e8},
             {100, 2e8}};
         for (double[] c : cases) {
