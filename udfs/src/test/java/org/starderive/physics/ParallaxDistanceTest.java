@@ -42,7 +42,7 @@ class ParallaxDistanceTest {
      */
 
     /** Log of the unnormalised posterior above (Bailer-Jones 2015); -inf for r <= 0. */
-    private static double referenceLogPosterior(double r, double w, double s, double lengthKpc) {
+    static double referenceLogPosterior(double r, double w, double s, double lengthKpc) {
         if (!(r > 0)) {
             return Double.NEGATIVE_INFINITY;
         }
@@ -247,8 +247,16 @@ class ParallaxDistanceTest {
      * the cubic typed here, bracketed at [0.5/w, 2/w] (one sign change: the cubic is dominated by (w r - 1)/s^2 there).
      */
     private static double brentRoot(double w, double s, double lengthKpc) {
+        return brentRoot(w, s, lengthKpc, 0.5 / w, 2 / w);
+    }
+
+    /**
+     * Root of the Bailer-Jones 2015 cubic typed here, by Commons Math's Brent solver on a bracket where the cubic
+     * changes sign once, to a relative accuracy of about one unit in the last place.
+     */
+    static double brentRoot(double w, double s, double lengthKpc, double loKpc, double hiKpc) {
         UnivariateFunction cubic = r -> ((r / lengthKpc - 2) * r + w / (s * s)) * r - 1 / (s * s);
-        return new BrentSolver(1e-300, 1e-17, 1e-300).solve(10000, cubic, 0.5 / w, 2 / w);
+        return new BrentSolver(1e-16, 1e-300, 1e-300).solve(10000, cubic, loKpc, hiKpc);
     }
 
     @Test
