@@ -44,6 +44,9 @@ class EdsdPercentileReferenceTest {
             {1, 0.1, L}, {1, 0.5, L}, {0.2, 0.1, L}, {0, 0.3, L}, {-0.5, 0.5, L}, {10, 0.05, L}, {0.05, 1, L},
             {0, 1e4, L}, // no information: the prior alone
             {0.1, 0.001, L}, // a distant star with a 1 % parallax: the likelihood sets a narrow posterior far out
+            // a negative parallax measured very precisely (no real star): a narrow peak where prior and likelihood
+            // balance, r ≈ sqrt(|w| L) / s ≈ 2 Mpc, its width set by the prior's curvature there
+            {-3, 0.001, L},
             {3.333, 1.361, L}, // near the cusp where the cubic's three roots merge: flat-topped posterior
             {4.9, 1.784, L}, {4.0, 1.5745, L}, // three positive roots of the cubic: two maxima
             {1, 0.3, 100}, {0, 1, 100}, {0, 1, 1e4}, {1, 0.3, 0.01}, // length scales far from the default
@@ -120,12 +123,12 @@ class EdsdPercentileReferenceTest {
 
     /** Reference CDF of the posterior: piece edges in kpc and the normalised cumulative probability at each. */
     static final class ReferenceCdf {
-        final double w;
-        final double s;
-        final double lengthKpc;
-        final double peakLog;
-        final double[] edges;
-        final double[] cum;
+        private final double w;
+        private final double s;
+        private final double lengthKpc;
+        private final double peakLog;
+        private final double[] edges;
+        private final double[] cum;
         private final double norm;
         private final IterativeLegendreGaussIntegrator integrator;
 
