@@ -77,7 +77,7 @@ class JobConfigTest {
         assertTrue(rejected("physics: {r_v: abc}").contains("must be a number"));
         assertTrue(rejected("physics: {distance_method: guess}").contains("auto, inverse, edsd"));
         assertTrue(rejected("physics: {relations: [C99/X-Y]}").contains("Unknown colour-Teff relation"));
-        assertTrue(rejected("physics: {prior_length_kpc: 0}").contains("must be finite and > 0"));
+        assertTrue(rejected("physics: {prior_length_kpc: 0}").contains("must be > 0 and <= 100.0"));
         assertTrue(rejected("output: {compression: lz77}").contains("compression"));
         assertTrue(rejected("output: {lease_stale_after_s: 5}").contains("output.lease_stale_after_s"));
         assertTrue(rejected("[1, 2]").contains("top level"));

@@ -36,6 +36,8 @@ public final class DeriveSettings implements Serializable {
     public static final DistanceMethod DISTANCE_METHOD_DEFAULT = DistanceMethod.AUTO;
     /** Length scale of the exponentially decreasing space density prior, kpc (the value used by Bailer-Jones and co-workers, from memory). */
     public static final double PRIOR_LENGTH_KPC_DEFAULT = 1.35;
+    /** Largest prior length scale accepted, kpc (our choice: several times the Galactic disc's radius). */
+    public static final double PRIOR_LENGTH_KPC_MAX = 100.0;
     public static final boolean POSTERIOR_PERCENTILES_DEFAULT = true;
     public static final double RV_DEFAULT = 3.1;
     public static final double EBV_DEFAULT = 0.0;
@@ -95,7 +97,14 @@ public final class DeriveSettings implements Serializable {
             throw new IllegalArgumentException("Invalid distance method: null (must be one of auto, inverse, edsd)");
         }
         this.distanceMethod = b.distanceMethod;
-        this.priorLengthKpc = requirePositive("prior length scale", b.priorLengthKpc, "kpc");
+        // the prior describes stars of the Galaxy; beyond 100 kpc (several times the disc's radius) it is no longer a
+        // space density of stars, and from ~3e4 kpc the posterior mode's two Newton polishing steps (ParallaxDistance)
+        // no longer reach full precision (EdsdModeReferenceTest measures 1e-13 up to 1e4 kpc)
+        if (!(b.priorLengthKpc > 0 && b.priorLengthKpc <= PRIOR_LENGTH_KPC_MAX)) {
+            throw new IllegalArgumentException("Invalid prior length scale: " + b.priorLengthKpc + " kpc (must be > 0 and <= "
+                    + PRIOR_LENGTH_KPC_MAX + ")");
+        }
+        this.priorLengthKpc = b.priorLengthKpc;
         this.posteriorPercentiles = b.posteriorPercentiles;
         this.rv = requirePositive("R_V", b.rv, "");
         this.ebvDefault = requireNonNegative("default E(B-V)", b.ebvDefault, "mag");

@@ -47,7 +47,10 @@ public final class EdsdPosterior {
 
     /**
      * Writes the distances in kpc at cumulative probabilities {@code probs} (ascending, each in (0,1)) to
-     * {@code outKpc}. Returns false (and writes NaN) when the inputs have no posterior: σ ≤ 0 or non-finite values.
+     * {@code outKpc}. Returns false (and writes NaN) when the inputs have no posterior: σ ≤ 0 or non-finite values;
+     * also when the posterior is narrower than doubles resolve near its mode (ϖ/σ above ~1e16, or a prior length far
+     * below a parsec), where the grid misses the spike. Between ϖ/σ ~1e10 and 1e16 the 1e-7 floor on the step in ln r
+     * makes the percentiles coarser than the posterior, by under 1e-8 relative. Measured parallaxes stay far from both.
      */
     public boolean percentilesKpc(double parallaxMas, double sigmaMas, double lengthKpc, double[] probs, double[] outKpc) {
         lastValid = false; // never sample another star's grid

@@ -50,7 +50,11 @@ class DeriveSettingsTest {
         accepts(DeriveSettings.Builder::parallaxMaxMas, DeriveSettings::parallaxMaxMas, 1000.0);
         rejects(DeriveSettings.Builder::parallaxMaxMas, -1.0, "largest plausible parallax: -1.0 mas (must be finite and > 0)");
         accepts(DeriveSettings.Builder::priorLengthKpc, DeriveSettings::priorLengthKpc, 0.5);
-        rejects(DeriveSettings.Builder::priorLengthKpc, 0.0, "prior length scale: 0.0 kpc (must be finite and > 0)");
+        rejects(DeriveSettings.Builder::priorLengthKpc, 0.0, "prior length scale: 0.0 kpc (must be > 0 and <= 100.0)");
+        rejects(DeriveSettings.Builder::priorLengthKpc, Double.NaN, "prior length scale: NaN kpc (must be > 0 and <= 100.0)");
+        // our bound: a length scale of several Galactic disc radii is no longer a density of the Galaxy's stars
+        accepts(DeriveSettings.Builder::priorLengthKpc, DeriveSettings::priorLengthKpc, 100.0);
+        rejects(DeriveSettings.Builder::priorLengthKpc, 100.001, "prior length scale: 100.001 kpc (must be > 0 and <= 100.0)");
         assertEquals(DeriveSettings.DistanceMethod.EDSD,
                 DeriveSettings.builder().distanceMethod(DeriveSettings.DistanceMethod.EDSD).build().distanceMethod());
         IllegalArgumentException e = assertThrows(IllegalArgumentException.class,
