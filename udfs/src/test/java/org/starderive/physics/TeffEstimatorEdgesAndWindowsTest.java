@@ -92,9 +92,41 @@ class TeffEstimatorEdgesAndWindowsTest {
         assertTrue(e.anyOut && e.anyColour);
         // the catalogue places the edge on a 0.001 mag grid: Teff is flat there to well under 0.01 K
         assertEquals(turnoverK, e.tUpper, 0.01);
+        // with extrapolation allowed as well: beyond the turnover the polynomial is never evaluated (relations sheet)
+        TeffEstimator ex = estimator(s, true);
+        ex.estimate(Regime.M_DWARF, 4.8, 0.0, null, Regime.M_BLEND_HI_K);
+        assertEquals(0, ex.n, "V−J 6.6 would give about 2820 K, inside the window, if it were evaluated");
+        assertTrue(!ex.extrapolated && Double.isNaN(ex.mean));
         s.valuesOnly = true;
         e.estimate(Regime.M_DWARF, 4.8, 0.0, null, Regime.M_BLEND_HI_K);
         assertEquals(Double.POSITIVE_INFINITY, e.tUpper, "a draw: the M-dwarf edge does not decide the regime");
+    }
+
+    /**
+     * A J−H form of Mann et al. 2015 (Table 2: Teff from the colour and J−H) needs both J and H: with an estimator
+     * holding only that form, a star missing one of them has no usable colour at all; with both, it is used.
+     */
+    @Test
+    void aJhFormNeedsBothJAndH() {
+        for (String id : new String[] {"M15/V-Ic+JH", "M15/V-J+JH"}) {
+            TeffRelation[] one = {TeffRelations.byId(id)};
+            int[] idx = {TeffRelations.index(one[0])};
+            for (Band missing : new Band[] {Band.J, Band.H}) {
+                StarState s = emptyState();
+                band(s, Band.V, 11.9, 0.02, 3.1);
+                band(s, Band.IC, 9.45, 0.02, 1.8);
+                band(s, Band.J, 8.0, 0.02, 0.87);
+                band(s, Band.H, 7.4, 0.025, 0.55);
+                TeffEstimator e = new TeffEstimator(s, one, idx, false);
+                e.estimate(Regime.M_DWARF, 4.8, 0.0, null, Regime.M_BLEND_HI_K);
+                assertEquals(1, e.n, id + " with J and H");
+                s.m0[missing.ordinal()] = Double.NaN;
+                s.sm[missing.ordinal()] = Double.NaN;
+                e.estimate(Regime.M_DWARF, 4.8, 0.0, null, Regime.M_BLEND_HI_K);
+                assertEquals(0, e.n, id + " without " + missing.label());
+                assertTrue(!e.anyColour && !e.anyOut, id + " without " + missing.label() + ": no colour at all");
+            }
+        }
     }
 
     /**
