@@ -211,6 +211,49 @@ class TeffBlendRegimeRulesTest {
             // central differences of a curved mixture: good to about 1e-6 relative here (1e-5 allowed; common practice)
             assertEquals(g[q], b.c[q], 1e-5 * Math.abs(g[q]) + 1e-5, "contribution of " + ErrorSource.name(q));
         }
+        // the M-dwarf share a/(a + b) moves with both temperatures (TeffBlend#dwM: its first-order contributions; the
+        // central differences of this ratio are good to about 2e-6 relative)
+        Rel mShare = new Rel("M-dwarf share", null, null, 0, 0, (m0, f, g2) -> {
+            double a = mWeight(TeffEstimatorTest.M15_VJ.t().teffK(m0, f, g2));
+            return a / (a + hotWeight(F96_BV.t().teffK(m0, f, g2)));
+        });
+        double[] dw = partials(List.of(mShare), s, 4.5, 0)[0];
+        for (int q = 0; q <= ErrorSource.FEH; q++) {
+            assertEquals(dw[q], b.dwM[q], 1e-5 * Math.abs(dw[q]) + 1e-9, "M-dwarf share, " + ErrorSource.name(q));
+        }
+        assertTrue(Math.abs(b.dwM[Band.V.ordinal()]) > 1e-3, "V moves both temperatures: " + b.dwM[Band.V.ordinal()]);
+    }
+
+    /**
+     * V−J 2.35 (Mann: 4256 K, M-dwarf weight 0.22) and B−V 0.32 (Flower: 7114 K, hot weight 0.23) on one star whose
+     * two colours are also inside the Casagrande et al. 2010 ranges: the FGK estimate keeps 1 − 0.22 − 0.23, and
+     * each moving weight enters the errors against the FGK estimate it replaces, d(blend) = Σ w dT + Σ (T_k − T_FGK)
+     * dw_k (the rule of TeffBlend, differentiated). Checked against central differences of the typed three-way blend
+     * (FGK inverse-variance weights held, as the class formula states).
+     */
+    @Test
+    void threeRegimesBlendWithBothRampsAgainstTheFgkEstimate() {
+        StarState s = bAndV(0.32);
+        band(s, Band.J, 10.0 - 2.35, 0.02, 0.87);
+        TeffBlend b = blended(s, 4.5);
+        List<Rel> fgk = List.of(TeffEstimatorTest.C10_BV, TeffEstimatorTest.C10_VJ);
+        double[] w = TeffEstimatorTest.weights(fgk, s, 4.5);
+        Rel threeWay = new Rel("three-way blend", null, null, 0, 0, (m0, f, g) -> {
+            double tf = (w[0] * fgk.get(0).t().teffK(m0, f, g) + w[1] * fgk.get(1).t().teffK(m0, f, g)) / (w[0] + w[1]);
+            double tm = TeffEstimatorTest.M15_VJ.t().teffK(m0, f, g);
+            double th = F96_BV.t().teffK(m0, f, g);
+            return (1 - mWeight(tm) - hotWeight(th)) * tf + mWeight(tm) * tm + hotWeight(th) * th;
+        });
+        double tm = TeffEstimatorTest.M15_VJ.t().teffK(s.m0, 0, 4.5);
+        double th = flowerK(0.32);
+        assertTrue(mWeight(tm) > 0.2 && hotWeight(th) > 0.2 && mWeight(tm) + hotWeight(th) < 0.5, tm + " K, " + th + " K");
+        assertEquals(threeWay.t().teffK(s.m0, 0, 4.5), b.mean, 1e-6);
+        assertEquals(mWeight(tm), b.wM, 1e-12);
+        assertEquals(bits("C10/B-V", "C10/V-J", "M15/V-J", "F96/B-V"), b.relationMask);
+        double[] g = partials(List.of(threeWay), s, 4.5, 0)[0];
+        for (int q = 0; q <= ErrorSource.FEH; q++) {
+            assertEquals(g[q], b.c[q], 1e-5 * Math.abs(g[q]) + 1e-5, "contribution of " + ErrorSource.name(q));
+        }
     }
 
     /**

@@ -296,7 +296,7 @@ class TeffBlendTest {
         b.newStar();
         b.estimateEvolved();
         List<Rel> giant = List.of(
-                TeffEstimatorTest.theta("GHB09/", Band.V, Band.J, new double[] {0.4629, 0.4124, -0.0417, -0.0012, 0.0094, 0.0013}, 18, 0),
+                TeffEstimatorTest.GHB09_VJ,
                 TeffEstimatorTest.theta("GHB09/", Band.V, Band.KS, new double[] {0.5293, 0.2489, -0.0119, -0.0042, 0.0135, 0.0010}, 23, 0),
                 TeffEstimatorTest.theta("GHB09/", Band.J, Band.KS, new double[] {0.6517, 0.6312, 0.0168, -0.0381, 0.0256, 0.0013}, 94, 0));
         assertEquals(TeffEstimatorTest.weightedMean(giant, s, 2.5), b.mean, 1e-6);

@@ -59,6 +59,9 @@ class TeffEstimatorTest {
     static final Rel C10_VK = c10(Band.V, Band.KS, new double[] {0.5057, 0.2600, -0.0146, -0.0131, 0.0288, 0.0016}, 25);
     static final Rel C10_JK = c10(Band.J, Band.KS, new double[] {0.6393, 0.6104, 0.0920, -0.0330, 0.0291, 0.0020}, 132);
 
+    /** González Hernández &amp; Bonifacio 2009, A&amp;A 497, 497, Table 5 (giants), V−J: the θ form, no zero point given. */
+    static final Rel GHB09_VJ = theta("GHB09/", Band.V, Band.J, new double[] {0.4629, 0.4124, -0.0417, -0.0012, 0.0094, 0.0013}, 18, 0);
+
     /**
      * Casagrande et al. 2021, MNRAS 507, 2684 (authors' release): Teff = c0 + c1X + c2X² + c3X³ + c4X⁵ + c5 g + c6 gX
      * + c7 gX² + c8 gX³ + c9 gX⁵ + c10 f + c11 fX + c12 fX² + c13 fX³ + c14 f g X; zero point 20 K (same paper);
@@ -375,7 +378,7 @@ class TeffEstimatorTest {
     }
 
     /** Twice the error of colour blue−red: both bands and the colour excess (the class rule), in its order. */
-    private static double twoSigma(StarState s, Band blue, Band red) {
+    static double twoSigma(StarState s, Band blue, Band red) {
         double sb = s.sm[blue.ordinal()];
         double sr = s.sm[red.ordinal()];
         double se = (s.rBand[blue.ordinal()] - s.rBand[red.ordinal()]) * s.sEbv;
