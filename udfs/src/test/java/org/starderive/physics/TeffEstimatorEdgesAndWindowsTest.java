@@ -22,7 +22,7 @@ import org.starderive.physics.TeffEstimatorTest.Rel;
 
 /**
  * {@link TeffEstimator#estimate}: which colour edges bound Teff in a Monte Carlo draw and in the nominal estimate
- * (the method's Javadoc: a draw keeps only the FGK and giant relations' red-edge bound), and the Teff window of the
+ * (the method's Javadoc: a draw keeps the FGK and giant relations' edge bounds, which decide the regime), and the Teff window of the
  * Mann et al. 2015 relations (2700–4100 K, ApJ 804, 64; widened to the blend zone's upper edge on request), against
  * the published relations typed again in {@link TeffEstimatorTest}.
  */
@@ -41,7 +41,7 @@ class TeffEstimatorEdgesAndWindowsTest {
      * blue edge 0.46, each by 1 mmag more than twice its error (the class rule); V = 0 so the colours are exact.
      */
     @Test
-    void aDrawKeepsTheFgkRedEdgeBoundButNotTheBlueOne() {
+    void aDrawKeepsTheFgkRedAndBlueEdgeBounds() {
         StarState s = TeffEstimatorTest.solarTypeDwarf(0.0);
         s.m0[Band.B.ordinal()] = 1.29 + twoSigma(s, Band.B, Band.V) + 0.001;
         s.m0[Band.IC.ordinal()] = -(0.46 - twoSigma(s, Band.V, Band.IC) - 0.001);
@@ -53,8 +53,8 @@ class TeffEstimatorEdgesAndWindowsTest {
         assertEquals(blueEdgeK, e.tLower, 1e-6, "nominal: hotter than V−I_C at its blue edge");
         s.valuesOnly = true;
         e.estimate(Regime.FGK_DWARF, 4.44, 0.0, null, 0);
-        assertEquals(redEdgeK, e.tUpper, 1e-6, "a draw: the red-edge bound decides the regime");
-        assertEquals(0.0, e.tLower, 0.0, "a draw: no blue-edge bound");
+        assertEquals(redEdgeK, e.tUpper, 1e-6, "a draw: the red-edge bound decides the regime (M dwarf)");
+        assertEquals(blueEdgeK, e.tLower, 1e-6, "a draw: the blue-edge bound decides the regime (hot)");
         assertTrue(e.anyOut);
     }
 
