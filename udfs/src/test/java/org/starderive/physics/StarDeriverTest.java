@@ -362,6 +362,39 @@ class StarDeriverTest {
         assertTrue(Double.isNaN(r.teffChi2), "chi2 " + r.teffChi2);
     }
 
+    /**
+     * Only the Mann et al. 2015 relations enabled: Barnard's star ({@link RegimeTest#barnardsStar()}) without I_C, so
+     * V−J is its one colour. Of the forms of one colour only the first usable is used (TeffEstimator), in the order of
+     * TeffRelations — [Fe/H], J−H, plain: the order of Mann et al. 2015's Table 2 scatters, 42, 48 and 55 K — and the
+     * [Fe/H] form only for a measured [Fe/H]. Table 2 (erratum): Teff / 3500 K = a + bX + cX² + dX³ + eX⁴ + f [Fe/H]
+     * (typed in MannRelationsTest), or + f (J−H) + g (J−H)², or plain (typed here; relations.md section 11).
+     */
+    @Test
+    void withOnlyTheMannRelationsEachColourIsUsedOnceInItsBestForm() {
+        DeriveSettings m15 = DeriveSettings.builder().relations(TeffRelations.ids().stream()
+                .filter(id -> id.startsWith("M15/")).collect(java.util.stream.Collectors.toList())).build();
+        StarInput in = RegimeTest.barnardsStar();
+        in.hasMag[Band.IC.ordinal()] = false;
+        double x = 9.511 - 5.244;
+        double jh = 5.244 - 4.834;
+        StarResult r = new StarDeriver(m15).derive(in, new StarResult());
+        assertEquals("M15/V-J+FeH", r.teffFrom(), "V−J once, in its [Fe/H] form");
+        assertEquals(MannRelationsTest.teffVjFehK(x, -0.40), r.teffK, 1e-6);
+        assertEquals(LuminosityClass.MAIN_SEQUENCE, r.lumClass);
+        // no measured [Fe/H]: the J−H form
+        in.hasFeh = in.hasFehErr = false;
+        r = new StarDeriver(m15).derive(in, new StarResult());
+        assertEquals("M15/V-J+JH", r.teffFrom());
+        assertEquals(3500 * (2.769 - 1.421 * x + 0.4284 * x * x - 0.06133 * Math.pow(x, 3) + 0.003310 * Math.pow(x, 4)
+                + 0.1333 * jh + 0.05416 * jh * jh), r.teffK, 1e-6);
+        // nor H: the plain form
+        in.hasMag[Band.H.ordinal()] = false;
+        r = new StarDeriver(m15).derive(in, new StarResult());
+        assertEquals("M15/V-J", r.teffFrom());
+        assertEquals(3500 * (2.840 - 1.3453 * x + 0.3906 * x * x - 0.0546 * Math.pow(x, 3) + 0.002913 * Math.pow(x, 4)),
+                r.teffK, 1e-6);
+    }
+
     @Test
     void aGaiaDwarfsTeffIsTheGaiaRelationAtItsOwnLogg() {
         // a K dwarf seen in G, BP, RP only, at 20 pc: the C21 BP−RP relation needs log g, which the chain iterates
