@@ -559,6 +559,78 @@ class StarDeriverTest {
         assertEquals(TEFF_EXTRAPOLATED.mask() | MASS_NOT_APPLICABLE.mask(), r.flags, QualityFlag.names(r.flags).toString());
     }
 
+    /**
+     * README flag table, BC_UNRELIABLE: L "on the BC of a dwarf below 4000 K (no M-dwarf radius: no Ks or no
+     * distance)". A K7–M0 blend dwarf without V or G has no BC route at all: its L is the M-dwarf radius's alone, so it
+     * is not flagged even below 4000 K (the core reports a BC_V for such a star all the same, as its M-dwarf weight is
+     * below 1: the flag must not follow that). BP−RP 1.627 with [Fe/H]
+     * −0.5 (Mann et al. 2015: about 4250 K, M-dwarf weight about 0.25; Casagrande et al. 2021: about 4000 K) and J−Ks
+     * 1.2, extrapolated from Casagrande et al. 2010's edge 0.80 (about 3340 K), bring the blend below 4000 K;
+     * M_Ks 5.6 at 20 pc. Mann et al. 2015 radius ([Fe/H] form) and Stefan–Boltzmann typed in MannRelationsTest and
+     * LuminosityRadiusStepTest.
+     */
+    @Test
+    void aBlendDwarfWithoutVIsNotFlaggedForABcItsLuminosityDoesNotUse() {
+        StarInput in = new StarInput().parallax(50, 0.1).magnitude(Band.BP, 10.627, 0.01).magnitude(Band.RP, 9.0, 0.01)
+                .magnitude(Band.J, 8.3, 0.02).magnitude(Band.KS, 7.1, 0.02).ebv(0, 0.01).feh(-0.5, 0.1);
+        StarResult r = new StarDeriver(DeriveSettings.builder().allowExtrapolation(true).build()).derive(in, out);
+        assertEquals(LuminosityClass.MAIN_SEQUENCE, r.lumClass);
+        assertTrue(r.teffK < BolometricCorrectionFlower1996.COOL_DWARF_LIMIT_K && r.teffFrom().contains("M15/")
+                && r.teffFrom().contains("C10/J-Ks"), "a blend below 4000 K: " + r.teffK + " K, " + r.teffFrom());
+        assertTrue(r.massMksWeight > 0 && r.massMksWeight < 1, "M-dwarf weight " + r.massMksWeight);
+        assertEquals(1.0, r.radiusMksWeight, 0.0, "no V: the radius route alone");
+        double radius = MannRelationsTest.radiusFeh(7.1 - LuminosityRadiusStepTest.mu(50), -0.5);
+        double lum = radius * radius * Math.pow(r.teffK / LuminosityRadiusStepTest.TEFF_SUN_K, 4);
+        assertEquals(lum, r.lumLsun, 1e-9 * lum);
+        assertFalse(r.has(BC_UNRELIABLE), QualityFlag.names(r.flags).toString());
+    }
+
+    @Test
+    void aGiantExtrapolatedBelowTheBcCalibrationIsFlagged() {
+        // README flag table, BC_UNRELIABLE: L rests on a BC outside its calibration (Flower 1996: 2900–52000 K,
+        // BolometricCorrectionFlower1996). An M giant with V−H 9.0 and [Fe/H] −1 (extrapolation on): González Hernández
+        // & Bonifacio 2009 V−H, θ = b0 + b1 X + b2 X² + b3 X [Fe/H] + b4 [Fe/H] + b5 [Fe/H]² (Table 5, relations.md,
+        // typed here), gives about 2840 K; its red edge 3.1 is at about 4150 K, above the 4100 K of the red-edge rule
+        double x = 9.0;
+        double feh = -1.0;
+        double teff = 5040 / (0.5321 + 0.2649 * x - 0.0146 * x * x - 0.0069 * x * feh + 0.0211 * feh + 0.0009 * feh * feh);
+        double edge = 5040 / (0.5321 + 0.2649 * 3.1 - 0.0146 * 3.1 * 3.1 - 0.0069 * 3.1 * feh + 0.0211 * feh + 0.0009 * feh * feh);
+        assertTrue(teff < 2900 && edge > Regime.M_BLEND_LO_K, teff + " K, edge " + edge + " K");
+        // V for about 3000 L_sun at 1 kpc (M_bol on the Flower/Torres scale, typed in LuminosityRadiusStepTest): luminous
+        double v = LuminosityRadiusStepTest.mbolSunBcScale() - 2.5 * Math.log10(3000) - BolometricCorrectionTest.typedBcV(teff) + 10;
+        StarInput in = new StarInput().parallax(1.0, 0.01).magnitude(Band.V, v, 0.01).magnitude(Band.H, v - x, 0.01)
+                .ebv(0, 0).feh(feh, 0.1);
+        StarResult r = new StarDeriver(DeriveSettings.builder().allowExtrapolation(true).build()).derive(in, out);
+        assertEquals(LuminosityClass.EVOLVED, r.lumClass);
+        assertEquals("GHB09/V-H", r.teffFrom());
+        assertEquals(teff, r.teffK, 1e-6);
+        assertEquals(BC_UNRELIABLE.mask() | TEFF_EXTRAPOLATED.mask() | MASS_NOT_APPLICABLE.mask(), r.flags,
+                QualityFlag.names(r.flags).toString());
+    }
+
+    @Test
+    void aOneColourTeffIsNeverFlaggedForDisagreeingColours() {
+        // TEFF_COLOURS_DISAGREE is a chi-square test of the colours against each other (README flag table): one colour
+        // has no degree of freedom (n − 1 = 0, TeffEstimator), so it can never disagree, at any colour of its range
+        // and whatever its errors. Stars without a parallax (no class iteration), one pair of bands each
+        Band[][] pairs = {{Band.V, Band.KS}, {Band.B, Band.V}, {Band.J, Band.KS}};
+        double[][] ranges = {{0.80, 3.10}, {0.40, 1.25}, {0.10, 0.78}}; // inside C10's ranges (Table 4), B−V red of Flower's hot zone
+        double[] errs = {0.01, 0.013, 0.029, 0.05};
+        for (int p = 0; p < pairs.length; p++) {
+            for (int i = 0; i <= 40; i++) {
+                double colour = ranges[p][0] + (ranges[p][1] - ranges[p][0]) * i / 40;
+                double err = errs[i % errs.length];
+                StarInput in = new StarInput().magnitude(pairs[p][0], 10 + colour, err).magnitude(pairs[p][1], 10, err)
+                        .ebv(0, 0.01).feh(0, 0.1);
+                StarResult r = deriver.derive(in, out);
+                String what = pairs[p][0] + "−" + pairs[p][1] + " " + colour + ": " + r.teffFrom();
+                assertTrue(r.teffK > 0 && Long.bitCount(r.teffRelations) == 1, what);
+                assertFalse(r.has(TEFF_COLOURS_DISAGREE), what + ", flags " + QualityFlag.names(r.flags));
+                assertTrue(Double.isNaN(r.teffChi2), what + ", chi2 " + r.teffChi2);
+            }
+        }
+    }
+
     @Test
     void flagBitsAreUniqueAndStable() {
         java.util.Set<Integer> bits = new java.util.HashSet<>();
