@@ -612,13 +612,14 @@ class StarDeriverTest {
     void aOneColourTeffIsNeverFlaggedForDisagreeingColours() {
         // TEFF_COLOURS_DISAGREE is a chi-square test of the colours against each other (README flag table): one colour
         // has no degree of freedom (n − 1 = 0, TeffEstimator), so it can never disagree, at any colour of its range
-        // and whatever its errors. Stars without a parallax (no class iteration), one pair of bands each
+        // and whatever its errors. Stars without a parallax (no class iteration), one pair of bands each, 801 colours
+        // per pair: a one-colour χ² is 0 but for rounding, which leaves it above 0 for a few stars in a thousand
         Band[][] pairs = {{Band.V, Band.KS}, {Band.B, Band.V}, {Band.J, Band.KS}};
         double[][] ranges = {{0.80, 3.10}, {0.40, 1.25}, {0.10, 0.78}}; // inside C10's ranges (Table 4), B−V red of Flower's hot zone
         double[] errs = {0.01, 0.013, 0.029, 0.05};
         for (int p = 0; p < pairs.length; p++) {
-            for (int i = 0; i <= 40; i++) {
-                double colour = ranges[p][0] + (ranges[p][1] - ranges[p][0]) * i / 40;
+            for (int i = 0; i <= 800; i++) {
+                double colour = ranges[p][0] + (ranges[p][1] - ranges[p][0]) * i / 800;
                 double err = errs[i % errs.length];
                 StarInput in = new StarInput().magnitude(pairs[p][0], 10 + colour, err).magnitude(pairs[p][1], 10, err)
                         .ebv(0, 0.01).feh(0, 0.1);
