@@ -149,4 +149,41 @@ class DistanceStepTest {
         assertNoDistance(r, "no parallax");
         assertTrue(Double.isNaN(r.distModulusErrMag) && Double.isNaN(r.absMag[Band.V.ordinal()]));
     }
+
+    /**
+     * The forced inverse parallax of a positive parallax too small for a double: 1000 / 10⁻³²⁰ mas overflows to +∞ pc.
+     * StarDeriver's rule "no infinity leaves the core: anything not finite becomes NaN (NULL)" and StarResult's "a
+     * quantity that could not be derived is NaN and flags says why": no distance, hence (README flag table) nothing
+     * absolute and no class — the star is then what a star without a usable distance is, with its parallax's own reason,
+     * PARALLAX_LOW_SNR (ϖ/σ about 10⁻³¹⁹), in place of PARALLAX_MISSING.
+     */
+    @Test
+    void aParallaxWhoseInverseOverflowsGivesNoDistanceAndNoInfinity() throws IllegalAccessException {
+        DeriveSettings inverse = DeriveSettings.builder().distanceSnrMin(0)
+                .distanceMethod(DeriveSettings.DistanceMethod.INVERSE).build();
+        assertEquals(Double.POSITIVE_INFINITY, 1000 / 1e-320, "the premise: the inverse overflows");
+        StarResult r = derive(inverse, sunAt(1e-320, 0.1));
+        assertEquals(PARALLAX_LOW_SNR.mask() | LUM_CLASS_ASSUMED.mask() | MASS_NOT_APPLICABLE.mask(), r.flags,
+                QualityFlag.names(r.flags).toString());
+        assertTrue(Double.isNaN(r.distPc) && Double.isNaN(r.distModulusMag) && Double.isNaN(r.distModulusErrMag),
+                "d " + r.distPc + ", μ " + r.distModulusMag);
+        for (Band b : Band.values()) {
+            assertTrue(Double.isNaN(r.absMag[b.ordinal()]) && Double.isNaN(r.absMagErr[b.ordinal()]), b.name());
+        }
+        assertNull(r.lumClass);
+        assertTrue(Double.isNaN(r.lumLsun) && Double.isNaN(r.radiusRsun) && Double.isNaN(r.mbolMag), "L " + r.lumLsun);
+        // Teff and the bolometric-flux diameter need no distance (the solar twin's, as without a parallax)
+        assertEquals(5772, r.teffK, 40);
+        assertTrue(r.angDiamMas > 0);
+        // no field of the result is infinite (every public double and double array of StarResult)
+        for (java.lang.reflect.Field f : StarResult.class.getFields()) {
+            if (f.getType() == double.class) {
+                assertFalse(Double.isInfinite(f.getDouble(r)), f.getName() + " " + f.getDouble(r));
+            } else if (f.getType() == double[].class) {
+                for (double v : (double[]) f.get(r)) {
+                    assertFalse(Double.isInfinite(v), f.getName() + " " + v);
+                }
+            }
+        }
+    }
 }

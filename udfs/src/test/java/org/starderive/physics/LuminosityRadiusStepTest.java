@@ -328,6 +328,28 @@ class LuminosityRadiusStepTest {
     }
 
     /**
+     * The M-dwarf + hot mixture (TeffBlendRegimeRulesTest) on a whole star at 10 pc: V−J 2.40 (Mann et al. 2015 with
+     * [Fe/H] 0: about 4180 K, M-dwarf ramp 0.60) and B−V 0.28 (Flower 1996: about 7320 K, hot ramp 0.64) leave the FGK
+     * estimate no share, so the two ramps are normalised, a/(a + b) and b/(a + b) (Regime; common practice for the
+     * weights of a mixture). M_Ks 5.0 lies inside Mann et al. 2015's radius range and V is measured: both L routes,
+     * blended with the M-dwarf share a/(a + b), which moves with B through the Flower temperature.
+     */
+    @Test
+    void inTheMDwarfAndHotMixtureEachInputsErrorMatchesCentralDifferencesOfTheTypedBlend() {
+        StarInput in = new StarInput().parallax(100, 0.1).magnitude(Band.V, 8.0, 0.01).magnitude(Band.B, 8.28, 0.01)
+                .magnitude(Band.J, 5.60, 0.02).magnitude(Band.KS, 5.0, 0.02).ebv(0, 0.01).feh(0, 0.1);
+        StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
+        double a = TeffBlendTest.mWeight(MannRelationsTest.teffVjFehK(2.40, 0));
+        double b = TeffBlendTest.hotWeight(TeffBlendTest.flowerK(0.28));
+        assertTrue(a > 0 && b > 0 && a + b > 1, "the ramps overlap: " + a + " + " + b);
+        assertEquals(a / (a + b), r.radiusMksWeight, 1e-9, r.teffFrom());
+        assertEquals("M15/V-J+FeH,F96/B-V", r.teffFrom(), "no FGK relation takes part");
+        assertEquals(LuminosityClass.MAIN_SEQUENCE, r.lumClass);
+        assertEquals(lumLsun(blendMbol(in, r)), r.lumLsun, 1e-9 * r.lumLsun);
+        assertEachInputMatchesTypedBlend(in, "M-dwarf + hot");
+    }
+
+    /**
      * Each band of {@code in}, its [Fe/H] and its distance alone: M_bol, ln R and ln θ against central differences of the
      * typed blend ({@link #blendMbol}, {@link #blendLnTheta}) at the Teff and weight the core gives for the shifted input.
      */

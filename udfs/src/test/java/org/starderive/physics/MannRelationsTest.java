@@ -21,6 +21,15 @@ class MannRelationsTest {
         return (1.9305 - 0.3466 * mKs + 0.01647 * mKs * mKs) * (1 + 0.04458 * feh);
     }
 
+    /**
+     * Mann et al. 2015 Table 2 (erratum), the V−J row with [Fe/H] (relations.md section 11), in plain powers:
+     * Teff / 3500 K = 2.515 − 1.054 X + 0.2965 X² − 0.04150 X³ + 0.002245 X⁴ + 0.05262 [Fe/H], X = V − J.
+     */
+    static double teffVjFehK(double x, double feh) {
+        return 3500 * (2.515 - 1.054 * x + 0.2965 * x * x - 0.04150 * Math.pow(x, 3) + 0.002245 * Math.pow(x, 4)
+                + 0.05262 * feh);
+    }
+
     // Mann et al. 2019 Table 6, n = 5: log10 M = sum a_i (M_Ks - 7.5)^i; with [Fe/H]: M = (1 + f [Fe/H]) 10^(sum b_i ...)
     private static final double[] A19 = {-0.642, -0.208, -8.43e-4, 7.87e-3, 1.42e-4, -2.13e-4};
     private static final double[] B19 = {-0.647, -0.207, -6.53e-4, 7.13e-3, 1.84e-4, -1.60e-4};

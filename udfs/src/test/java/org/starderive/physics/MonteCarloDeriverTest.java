@@ -282,4 +282,82 @@ class MonteCarloDeriverTest {
             }
         }
     }
+
+    /**
+     * Class Javadoc: "A quantity the analytic chain does not give for the measured inputs ... gets no percentiles
+     * either". An M6 dwarf without V or G (BP−RP 3.8: Mann et al. 2015 about 2930 K) at exactly 10 pc without
+     * reddening, so that M_Ks is its Ks, 9.8, to the last bit: the faint end of Mann et al. 2015's radius range
+     * (4.6 < M_Ks < 9.8, exclusive), so no radius, and without V no bolometric correction: no L, no R. Its draws move
+     * M_Ks by the Ks and distance errors, symmetric about 9.8, and extinction E(B−V) = 0 ± 0.2, clipped at 0, only ever
+     * brightens it: more than half of them fall inside the range and give L and R. Control: the same star 0.001 mag
+     * brighter in Ks (inside the range; its draws move alike) gets L and R percentiles, so at least half its draws have
+     * them.
+     */
+    @Test
+    void aStarWithoutLOrRGetsNoLOrRPercentilesAlthoughMostDrawsHaveThem() {
+        StarInput in = new StarInput().parallax(100, 0.1).magnitude(Band.BP, 13.8, 0.01).magnitude(Band.RP, 10.0, 0.01)
+                .magnitude(Band.KS, 9.8, 0.02).ebv(0, 0.2).feh(0, 0.1);
+        StarResult b = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
+        assertEquals(9.8, b.absMag[Band.KS.ordinal()], 0.0);
+        assertTrue(b.teffK > 2700 && Double.isNaN(b.lumLsun) && Double.isNaN(b.radiusRsun), "Teff " + b.teffK + ", L " + b.lumLsun);
+        double[][] q = run(new MonteCarloDeriver(DeriveSettings.defaults(), 128, 1), in, 1L);
+        for (int k : new int[] {2, 3}) {
+            for (int i = 0; i < 3; i++) {
+                assertTrue(Double.isNaN(q[k][i]), MonteCarloDeriver.QUANTITIES[k] + " " + i + ": " + q[k][i]);
+            }
+        }
+        assertTrue(q[1][1] > 2700, "Teff has its percentiles: " + q[1][1]);
+        in.mag[Band.KS.ordinal()] -= 0.001;
+        q = run(new MonteCarloDeriver(DeriveSettings.defaults(), 128, 1), in, 1L);
+        assertTrue(q[2][0] > 0 && q[3][0] > 0, "control, M_Ks 9.799: L " + q[2][0] + ", R " + q[3][0]);
+    }
+
+    /**
+     * "Percentiles are taken over the draws that gave a value (none if fewer than half did)" (class Javadoc): 4 of 8
+     * is not fewer than half, 3 of 8 is. A K7 dwarf without V or G (BP−RP 1.9: Mann et al. 2015 about 4010 K, wholly in
+     * the M-dwarf regime) at exactly 10 pc, M_Ks 10⁻⁹ mag inside the bright end of Mann et al. 2015's radius range
+     * (4.6), E(B−V) 0 ± 0.2 the only error source on: a draw with z_E ≤ 0 is the nominal star (E clipped at 0), one
+     * with z_E > 0 is reddened, its M_Ks brighter than 4.6, and without V it has no L. The star keys are chosen by the
+     * number of z_E ≤ 0 among the 8 draws in the stream (see {@link #eachDrawSpendsOneDeviatePerSourceAndPerRelationItsClassEvaluates}:
+     * z_E is each draw's deviate after those of its bands); every draw with L has the nominal L.
+     */
+    @Test
+    void percentilesNeedAtLeastHalfTheDrawsExactlyHalfIsEnough() {
+        StarInput in = new StarInput().parallax(100, 0.01).magnitude(Band.BP, 7.9, 0.01).magnitude(Band.RP, 6.0, 0.01)
+                .magnitude(Band.KS, 4.6 + 1e-9, 0.02).ebv(0, 0.2).feh(0, 0.1);
+        StarResult b = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
+        assertEquals(1.0, b.radiusMksWeight, 0.0, "the radius route alone: " + b.teffFrom());
+        assertTrue(b.lumLsun > 0, "L " + b.lumLsun);
+        int draws = 8;
+        int m = deviatesBeforeTheDistance(in, b); // the distance source is off: no deviate for it
+        long[] keyWith = new long[draws + 1];
+        for (long key = 1; key < 2000; key++) {
+            ZigguratSampler.NormalizedGaussian z = ZigguratSampler.NormalizedGaussian.of(
+                    RandomSource.XO_RO_SHI_RO_128_PP.create(new SplitMix64(key).nextLong()));
+            int nominal = 0;
+            boolean clear = true;
+            for (int d = 0; d < draws; d++) {
+                for (int k = 0; k < m; k++) {
+                    double v = z.sample();
+                    if (k == 3) { // after BP, RP, Ks
+                        nominal += v <= 0 ? 1 : 0;
+                        clear &= !(v > 0 && v < 1e-6); // no reddening too small to move M_Ks out of the range
+                    }
+                }
+            }
+            if (clear && keyWith[nominal] == 0) {
+                keyWith[nominal] = key;
+            }
+        }
+        assertTrue(keyWith[3] > 0 && keyWith[4] > 0);
+        MonteCarloDeriver mc = new MonteCarloDeriver(DeriveSettings.defaults(), draws, 1);
+        mc.errorSources(1L << ErrorSource.EBV);
+        double[][] half = run(mc, in, keyWith[4]);
+        double[][] fewer = run(mc, in, keyWith[3]);
+        for (int i = 0; i < 3; i++) {
+            assertEquals(b.lumLsun, half[2][i], 1e-12 * b.lumLsun, "4 of 8 draws with L, percentile " + i);
+            assertEquals(b.radiusRsun, half[3][i], 1e-12 * b.radiusRsun, "4 of 8 draws with R, percentile " + i);
+            assertTrue(Double.isNaN(fewer[2][i]) && Double.isNaN(fewer[3][i]), "3 of 8: " + fewer[2][i]);
+        }
+    }
 }

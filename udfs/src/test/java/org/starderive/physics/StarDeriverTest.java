@@ -362,6 +362,39 @@ class StarDeriverTest {
         assertTrue(Double.isNaN(r.teffChi2), "chi2 " + r.teffChi2);
     }
 
+    /**
+     * Only the Mann et al. 2015 relations enabled: Barnard's star ({@link RegimeTest#barnardsStar()}) without I_C, so
+     * V−J is its one colour. Of the forms of one colour only the first usable is used (TeffEstimator), in the order of
+     * TeffRelations — [Fe/H], J−H, plain: the order of Mann et al. 2015's Table 2 scatters, 42, 48 and 55 K — and the
+     * [Fe/H] form only for a measured [Fe/H]. Table 2 (erratum): Teff / 3500 K = a + bX + cX² + dX³ + eX⁴ + f [Fe/H]
+     * (typed in MannRelationsTest), or + f (J−H) + g (J−H)², or plain (typed here; relations.md section 11).
+     */
+    @Test
+    void withOnlyTheMannRelationsEachColourIsUsedOnceInItsBestForm() {
+        DeriveSettings m15 = DeriveSettings.builder().relations(TeffRelations.ids().stream()
+                .filter(id -> id.startsWith("M15/")).collect(java.util.stream.Collectors.toList())).build();
+        StarInput in = RegimeTest.barnardsStar();
+        in.hasMag[Band.IC.ordinal()] = false;
+        double x = 9.511 - 5.244;
+        double jh = 5.244 - 4.834;
+        StarResult r = new StarDeriver(m15).derive(in, new StarResult());
+        assertEquals("M15/V-J+FeH", r.teffFrom(), "V−J once, in its [Fe/H] form");
+        assertEquals(MannRelationsTest.teffVjFehK(x, -0.40), r.teffK, 1e-6);
+        assertEquals(LuminosityClass.MAIN_SEQUENCE, r.lumClass);
+        // no measured [Fe/H]: the J−H form
+        in.hasFeh = in.hasFehErr = false;
+        r = new StarDeriver(m15).derive(in, new StarResult());
+        assertEquals("M15/V-J+JH", r.teffFrom());
+        assertEquals(3500 * (2.769 - 1.421 * x + 0.4284 * x * x - 0.06133 * Math.pow(x, 3) + 0.003310 * Math.pow(x, 4)
+                + 0.1333 * jh + 0.05416 * jh * jh), r.teffK, 1e-6);
+        // nor H: the plain form
+        in.hasMag[Band.H.ordinal()] = false;
+        r = new StarDeriver(m15).derive(in, new StarResult());
+        assertEquals("M15/V-J", r.teffFrom());
+        assertEquals(3500 * (2.840 - 1.3453 * x + 0.3906 * x * x - 0.0546 * Math.pow(x, 3) + 0.002913 * Math.pow(x, 4)),
+                r.teffK, 1e-6);
+    }
+
     @Test
     void aGaiaDwarfsTeffIsTheGaiaRelationAtItsOwnLogg() {
         // a K dwarf seen in G, BP, RP only, at 20 pc: the C21 BP−RP relation needs log g, which the chain iterates
@@ -524,6 +557,79 @@ class StarDeriverTest {
         assertEquals(LuminosityClass.EVOLVED, r.lumClass);
         assertTrue(r.teffK > 2900 && r.teffK < 4000 && !Double.isNaN(r.bcV), "Teff " + r.teffK + ", BC " + r.bcV);
         assertEquals(TEFF_EXTRAPOLATED.mask() | MASS_NOT_APPLICABLE.mask(), r.flags, QualityFlag.names(r.flags).toString());
+    }
+
+    /**
+     * README flag table, BC_UNRELIABLE: L "on the BC of a dwarf below 4000 K (no M-dwarf radius: no Ks or no
+     * distance)". A K7–M0 blend dwarf without V or G has no BC route at all: its L is the M-dwarf radius's alone, so it
+     * is not flagged even below 4000 K (the core reports a BC_V for such a star all the same, as its M-dwarf weight is
+     * below 1: the flag must not follow that). BP−RP 1.627 with [Fe/H]
+     * −0.5 (Mann et al. 2015: about 4250 K, M-dwarf weight about 0.25; Casagrande et al. 2021: about 4000 K) and J−Ks
+     * 1.2, extrapolated from Casagrande et al. 2010's edge 0.80 (about 3340 K), bring the blend below 4000 K;
+     * M_Ks 5.6 at 20 pc. Mann et al. 2015 radius ([Fe/H] form) and Stefan–Boltzmann typed in MannRelationsTest and
+     * LuminosityRadiusStepTest.
+     */
+    @Test
+    void aBlendDwarfWithoutVIsNotFlaggedForABcItsLuminosityDoesNotUse() {
+        StarInput in = new StarInput().parallax(50, 0.1).magnitude(Band.BP, 10.627, 0.01).magnitude(Band.RP, 9.0, 0.01)
+                .magnitude(Band.J, 8.3, 0.02).magnitude(Band.KS, 7.1, 0.02).ebv(0, 0.01).feh(-0.5, 0.1);
+        StarResult r = new StarDeriver(DeriveSettings.builder().allowExtrapolation(true).build()).derive(in, out);
+        assertEquals(LuminosityClass.MAIN_SEQUENCE, r.lumClass);
+        assertTrue(r.teffK < BolometricCorrectionFlower1996.COOL_DWARF_LIMIT_K && r.teffFrom().contains("M15/")
+                && r.teffFrom().contains("C10/J-Ks"), "a blend below 4000 K: " + r.teffK + " K, " + r.teffFrom());
+        assertTrue(r.massMksWeight > 0 && r.massMksWeight < 1, "M-dwarf weight " + r.massMksWeight);
+        assertEquals(1.0, r.radiusMksWeight, 0.0, "no V: the radius route alone");
+        double radius = MannRelationsTest.radiusFeh(7.1 - LuminosityRadiusStepTest.mu(50), -0.5);
+        double lum = radius * radius * Math.pow(r.teffK / LuminosityRadiusStepTest.TEFF_SUN_K, 4);
+        assertEquals(lum, r.lumLsun, 1e-9 * lum);
+        assertFalse(r.has(BC_UNRELIABLE), QualityFlag.names(r.flags).toString());
+    }
+
+    @Test
+    void aGiantExtrapolatedBelowTheBcCalibrationIsFlagged() {
+        // README flag table, BC_UNRELIABLE: L rests on a BC outside its calibration (Flower 1996: 2900–52000 K,
+        // BolometricCorrectionFlower1996). An M giant with V−H 9.0 and [Fe/H] −1 (extrapolation on): González Hernández
+        // & Bonifacio 2009 V−H, θ = b0 + b1 X + b2 X² + b3 X [Fe/H] + b4 [Fe/H] + b5 [Fe/H]² (Table 5, relations.md,
+        // typed here), gives about 2840 K; its red edge 3.1 is at about 4150 K, above the 4100 K of the red-edge rule
+        double x = 9.0;
+        double feh = -1.0;
+        double teff = 5040 / (0.5321 + 0.2649 * x - 0.0146 * x * x - 0.0069 * x * feh + 0.0211 * feh + 0.0009 * feh * feh);
+        double edge = 5040 / (0.5321 + 0.2649 * 3.1 - 0.0146 * 3.1 * 3.1 - 0.0069 * 3.1 * feh + 0.0211 * feh + 0.0009 * feh * feh);
+        assertTrue(teff < 2900 && edge > Regime.M_BLEND_LO_K, teff + " K, edge " + edge + " K");
+        // V for about 3000 L_sun at 1 kpc (M_bol on the Flower/Torres scale, typed in LuminosityRadiusStepTest): luminous
+        double v = LuminosityRadiusStepTest.mbolSunBcScale() - 2.5 * Math.log10(3000) - BolometricCorrectionTest.typedBcV(teff) + 10;
+        StarInput in = new StarInput().parallax(1.0, 0.01).magnitude(Band.V, v, 0.01).magnitude(Band.H, v - x, 0.01)
+                .ebv(0, 0).feh(feh, 0.1);
+        StarResult r = new StarDeriver(DeriveSettings.builder().allowExtrapolation(true).build()).derive(in, out);
+        assertEquals(LuminosityClass.EVOLVED, r.lumClass);
+        assertEquals("GHB09/V-H", r.teffFrom());
+        assertEquals(teff, r.teffK, 1e-6);
+        assertEquals(BC_UNRELIABLE.mask() | TEFF_EXTRAPOLATED.mask() | MASS_NOT_APPLICABLE.mask(), r.flags,
+                QualityFlag.names(r.flags).toString());
+    }
+
+    @Test
+    void aOneColourTeffIsNeverFlaggedForDisagreeingColours() {
+        // TEFF_COLOURS_DISAGREE is a chi-square test of the colours against each other (README flag table): one colour
+        // has no degree of freedom (n − 1 = 0, TeffEstimator), so it can never disagree, at any colour of its range
+        // and whatever its errors. Stars without a parallax (no class iteration), one pair of bands each, 801 colours
+        // per pair: a one-colour χ² is 0 but for rounding, which leaves it above 0 for a few stars in a thousand
+        Band[][] pairs = {{Band.V, Band.KS}, {Band.B, Band.V}, {Band.J, Band.KS}};
+        double[][] ranges = {{0.80, 3.10}, {0.40, 1.25}, {0.10, 0.78}}; // inside C10's ranges (Table 4), B−V red of Flower's hot zone
+        double[] errs = {0.01, 0.013, 0.029, 0.05};
+        for (int p = 0; p < pairs.length; p++) {
+            for (int i = 0; i <= 800; i++) {
+                double colour = ranges[p][0] + (ranges[p][1] - ranges[p][0]) * i / 800;
+                double err = errs[i % errs.length];
+                StarInput in = new StarInput().magnitude(pairs[p][0], 10 + colour, err).magnitude(pairs[p][1], 10, err)
+                        .ebv(0, 0.01).feh(0, 0.1);
+                StarResult r = deriver.derive(in, out);
+                String what = pairs[p][0] + "−" + pairs[p][1] + " " + colour + ": " + r.teffFrom();
+                assertTrue(r.teffK > 0 && Long.bitCount(r.teffRelations) == 1, what);
+                assertFalse(r.has(TEFF_COLOURS_DISAGREE), what + ", flags " + QualityFlag.names(r.flags));
+                assertTrue(Double.isNaN(r.teffChi2), what + ", chi2 " + r.teffChi2);
+            }
+        }
     }
 
     @Test
