@@ -104,6 +104,12 @@ final class DistanceStep {
     boolean modulus(StarResult out) {
         boolean haveDist = out.distPc > 0 && Double.isFinite(out.distPc);
         if (!haveDist) {
+            if (Double.isInfinite(out.distPc)) {
+                // an inverse parallax that overflowed (a positive ϖ' of ~1e-320 mas): no distance at all, so no
+                // interval either (1/(ϖ'+σ) would leave a lower bound with no value) and nothing to sample
+                out.distMethod = StarResult.DistanceMethod.NONE;
+                out.distPc = out.distLoPc = out.distHiPc = Double.NaN;
+            }
             s.mu = s.sMu = Double.NaN;
             return false;
         }

@@ -167,6 +167,9 @@ class DistanceStepTest {
                 QualityFlag.names(r.flags).toString());
         assertTrue(Double.isNaN(r.distPc) && Double.isNaN(r.distModulusMag) && Double.isNaN(r.distModulusErrMag),
                 "d " + r.distPc + ", μ " + r.distModulusMag);
+        // no interval without a value (1000/(ϖ+σ) = 10,000 pc would otherwise be left as a lower bound)
+        assertTrue(Double.isNaN(r.distLoPc) && Double.isNaN(r.distHiPc), "interval " + r.distLoPc + "–" + r.distHiPc);
+        assertEquals(StarResult.DistanceMethod.NONE, r.distMethod);
         for (Band b : Band.values()) {
             assertTrue(Double.isNaN(r.absMag[b.ordinal()]) && Double.isNaN(r.absMagErr[b.ordinal()]), b.name());
         }
