@@ -61,9 +61,11 @@ final class DistanceStep {
                 || (m == DeriveSettings.DistanceMethod.AUTO && p > 0 && snr >= settings.parallaxSnrMin());
         double lengthKpc = settings.priorLengthKpc();
         if (inverse) {
-            if (p > 0) {
+            double d = ParallaxDistance.inverseParallaxPc(p);
+            // a positive ϖ' whose inverse overflows (~1e-320 mas) has no distance, and so no interval either
+            if (p > 0 && Double.isFinite(d)) {
                 out.distMethod = StarResult.DistanceMethod.INVERSE_PARALLAX;
-                out.distPc = ParallaxDistance.inverseParallaxPc(p);
+                out.distPc = d;
                 out.distLoPc = ParallaxDistance.inverseParallaxPc(p + err);
                 out.distHiPc = ParallaxDistance.inverseParallaxPc(p - err); // NaN when p <= err: no upper bound
             }
@@ -104,12 +106,6 @@ final class DistanceStep {
     boolean modulus(StarResult out) {
         boolean haveDist = out.distPc > 0 && Double.isFinite(out.distPc);
         if (!haveDist) {
-            if (Double.isInfinite(out.distPc)) {
-                // an inverse parallax that overflowed (a positive ϖ' of ~1e-320 mas): no distance at all, so no
-                // interval either (1/(ϖ'+σ) would leave a lower bound with no value) and nothing to sample
-                out.distMethod = StarResult.DistanceMethod.NONE;
-                out.distPc = out.distLoPc = out.distHiPc = Double.NaN;
-            }
             s.mu = s.sMu = Double.NaN;
             return false;
         }
