@@ -32,6 +32,8 @@ package org.starderive.physics;
  * MASS_REL      the mass relation's scatter                          ln M (Mann et al. 2019; Eker et al. 2018)
  * BLEND         where two regimes' relations are blended (K7–M0,      the blended Teff, M_bol and ln M: the spread of the
  *               late A–early F): their disagreement, one z             mixture, √(w₁w₂) × (second − first estimate)
+ * TEFF_RADIUS_  the Teff–radius relation's scatter (Mann et al. 2015,  ln R at the Teff of an M dwarf whose Teff comes
+ *   REL         13.4 %, 9.3 % with [Fe/H])                           from its radius ({@link TeffRadiusMann2015})
  * </pre>
  */
 public final class ErrorSource {
@@ -50,8 +52,9 @@ public final class ErrorSource {
     public static final int BLEND = Band.COUNT + 9;
     public static final int SCATTER_M = Band.COUNT + 10;
     public static final int SCATTER_HOT = Band.COUNT + 11;
+    public static final int TEFF_RADIUS_REL = Band.COUNT + 12;
     /** Number of sources. */
-    public static final int COUNT = Band.COUNT + 12;
+    public static final int COUNT = Band.COUNT + 13;
 
     /** The scatter source of the colour relations of {@code regime}. */
     public static int scatterOf(Regime regime) {
@@ -64,7 +67,7 @@ public final class ErrorSource {
             return "mag_" + Band.values()[j].suffix();
         }
         String[] n = {"ebv", "feh", "logg", "scatter", "zero_point", "g_to_v", "distance", "radius_relation", "mass_relation", "blend",
-            "scatter_m_dwarf", "scatter_hot"};
+            "scatter_m_dwarf", "scatter_hot", "teff_radius_relation"};
         return n[j - Band.COUNT];
     }
 }

@@ -122,6 +122,7 @@ public final class MonteCarloDeriver {
             }
         }
         boolean vFromG = QualityFlag.V_FROM_G.isSet(b.flags);
+        boolean teffFromRadius = QualityFlag.TEFF_FROM_RADIUS.isSet(b.flags);
         for (int d = 0; d < draws; d++) {
             // one standard normal per error source (ErrorSource); the chain applies z × σ
             for (int k = 0; k < Band.COUNT; k++) {
@@ -135,6 +136,8 @@ public final class MonteCarloDeriver {
             z[ErrorSource.RADIUS_REL] = g.sample();
             z[ErrorSource.MASS_REL] = g.sample();
             z[ErrorSource.BLEND] = g.sample();
+            // drawn only where the nominal Teff came from the radius: every other star's draws stay as they were
+            z[ErrorSource.TEFF_RADIUS_REL] = teffFromRadius ? g.sample() : 0;
             long on = deriver.errorSources();
             if (on != -1L) {
                 for (int j = 0; j < ErrorSource.COUNT; j++) {

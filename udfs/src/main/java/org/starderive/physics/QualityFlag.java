@@ -69,7 +69,13 @@ public enum QualityFlag {
      * row is kept, alone — never paired in the two-table join, never {@link #DUPLICATE_ID} — but nothing ties it to
      * its source row. Bit 19 is unused and stays so.
      */
-    ID_MISSING(21, "the star id is null, empty or blank: the row is kept but cannot be joined back to its source");
+    ID_MISSING(21, "the star id is null, empty or blank: the row is kept but cannot be joined back to its source"),
+    /**
+     * An M dwarf without a colour of any Mann et al. 2015 relation (no V, no BP) whose Teff comes from its radius: R
+     * from M_Ks ({@link RadiusMann2015}) and the Teff at which the Teff–radius relation ({@link TeffRadiusMann2015})
+     * gives it. Teff, R and L then all rest on M_Ks; the Teff error carries the relation's 13.4 % scatter in R.
+     */
+    TEFF_FROM_RADIUS(22, "M dwarf without a Mann colour: Teff from its M_Ks radius through the Teff-radius relation; Teff, R and L rest on M_Ks alone");
 
     private static final QualityFlag[] VALUES = values();
 

@@ -10,6 +10,11 @@ package org.starderive.physics;
  * ---------  -------------------------------------------  -------------------------------------------  -------------------------------
  * m_dwarf    Mann et al. 2015 (+ 2016 erratum), Table 2:  R from M_Ks (Mann et al. 2015, Table 1);      M_Ks (Mann et al. 2019, Table 6,
  *            V−J, V−I_C, BP−RP; [Fe/H] or J−H forms        L = R² (Teff/Teff⊙)⁴ (Stefan–Boltzmann)       n = 5)
+ *            — none of these colours, but one redder than
+ *            every FGK relation and a distance: the Teff–
+ *            radius relation (Mann et al. 2015, Table 1)
+ *            run backwards at the M_Ks radius
+ *            ({@link TeffRadiusMann2015}, TEFF_FROM_RADIUS)
  * fgk_dwarf  Casagrande et al. 2010 (8 colours, [Fe/H]);  BC_V (Flower 1996 / Torres 2010) → L;         L (Eker et al. 2018)
  *            Casagrande et al. 2021 dwarf BP−RP, G−Ks      R from Stefan–Boltzmann
  * giant      González Hernández &amp; Bonifacio 2009;        as fgk_dwarf                                   none (not main sequence)

@@ -24,7 +24,8 @@ import static org.starderive.physics.QualityFlag.*;
  *   <li>distance modulus μ = 5 log10(d / 10 pc), absolute magnitudes M = m − μ − A;</li>
  *   <li>Teff by calibration {@link Regime}: each regime's in-range colour relations ({@link TeffRelations}) give an
  *       inverse-variance mean ({@link TeffEstimator}); M-dwarf, FGK and hot estimates are blended across the
- *       K7–M0 and late-A–early-F zones; a chi-square test flags disagreement ({@link TeffBlend});</li>
+ *       K7–M0 and late-A–early-F zones; a chi-square test flags disagreement ({@link TeffBlend}); an M dwarf without
+ *       a Mann colour (no V, no BP) gets its Teff from its M_Ks radius ({@link TeffRadiusMann2015});</li>
  *   <li>L and R: BC_V (Flower 1996 / Torres 2010) on its own solar scale, L/L⊙ = 10^(−0.4 (M_bol − M_bol,⊙)) and
  *       the Stefan–Boltzmann law R/R⊙ = (L/L⊙)^½ (Teff⊙/Teff)² with the nominal Teff⊙ (IAU 2015 B3); for M dwarfs R
  *       from M_Ks ({@link RadiusMann2015}) and L = R² (Teff/Teff⊙)⁴; V from G when V is missing (Riello et al. 2021);
@@ -246,6 +247,9 @@ public final class StarDeriver {
         long flags = 0;
         if (teff.extrapolated) {
             flags |= TEFF_EXTRAPOLATED.mask();
+        }
+        if (teff.fromRadius) {
+            flags |= TEFF_FROM_RADIUS.mask();
         }
         if ((teff.count >= 2 && teff.chi2() > settings.teffDisagreeChi2(teff.count - 1)) || teff.boundBroken) {
             flags |= TEFF_COLOURS_DISAGREE.mask();

@@ -93,5 +93,10 @@ public final class StarResult {
     public boolean has(QualityFlag f) { return f.isSet(flags); }
 
     /** Comma-separated ids of the relations behind {@link #teffK}; null when none. */
-    public String teffFrom() { return TeffRelations.describe(teffRelations); }
+    public String teffFrom() {
+        if (teffRelations == 0 && QualityFlag.TEFF_FROM_RADIUS.isSet(flags)) {
+            return TeffRadiusMann2015.ID;
+        }
+        return TeffRelations.describe(teffRelations);
+    }
 }

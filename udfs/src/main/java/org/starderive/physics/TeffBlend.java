@@ -42,6 +42,11 @@ final class TeffBlend {
     /** Contributions of each source to the M-dwarf weight (its derivative times the M estimate's contribution). */
     final double[] dwM = new double[NSRC];
     Regime regime;
+    /**
+     * Whether the Teff is an M dwarf's from its radius ({@link TeffRadiusMann2015} run backwards at the M_Ks radius
+     * of {@link RadiusMann2015}): no colour of a Mann et al. 2015 relation, but a colour redder than every FGK relation.
+     */
+    boolean fromRadius;
     /** First-order contributions of each error source to Teff. */
     final double[] c = new double[NSRC];
 
@@ -108,6 +113,60 @@ final class TeffBlend {
     }
 
     /**
+     * Teff of a main-sequence star that a colour puts redder than every FGK relation (cooler than 4100 K) but that has
+     * no colour of a Mann et al. 2015 relation (a faint late M dwarf without V and BP): its radius from M_Ks
+     * ({@link RadiusMann2015}, as the luminosity step takes it, the same draw of that relation's scatter) and the
+     * temperature at which the Teff–radius relation ({@link TeffRadiusMann2015}) gives that radius. Needs a distance
+     * and M_Ks inside the radius relation's range; false (no Teff) otherwise, or where the radius lies outside the
+     * inverse's branch. The colour's bound still applies: a Teff above it by more than 2σ is flagged as disagreeing.
+     */
+    private boolean fromRadius(double upper, double lower) {
+        int ks = Band.KS.ordinal();
+        double mKs = s.m0[ks] - s.mu;
+        if (!RadiusMann2015.inRange(mKs)) {
+            return false;
+        }
+        double fehForm = s.fehMeasured ? s.feh : Double.NaN;
+        double fracR = RadiusMann2015.scatterFrac(fehForm);
+        double fracT = TeffRadiusMann2015.scatterFrac(fehForm);
+        double lnR = Math.log(RadiusMann2015.radiusRsun(mKs, fehForm)) + s.dz(ErrorSource.RADIUS_REL, fracR);
+        double t = TeffRadiusMann2015.teffK(Math.exp(lnR - s.dz(ErrorSource.TEFF_RADIUS_REL, fracT)), fehForm);
+        if (Double.isNaN(t)) {
+            return false;
+        }
+        fromRadius = true;
+        mean = t;
+        dom = null;
+        relationMask = 0;
+        count = 0;
+        extrapolated = false;
+        usesLogg = false;
+        wM = 1;
+        regime = Regime.M_DWARF;
+        if (s.valuesOnly) {
+            err = Double.NaN;
+            boundBroken = false;
+            return true;
+        }
+        // d ln T = (d ln R_obs − d ln(1 + f [Fe/H]) − ε) / (d ln R / d ln T)
+        double tPerLnR = t / TeffRadiusMann2015.dLnRdLnTeff(t, fehForm);
+        double dR = RadiusMann2015.dLnRdMks(mKs, fehForm);
+        double[] cKs = s.cKs;
+        for (int j = 0; j < NSRC; j++) {
+            c[j] = tPerLnR * dR * cKs[j];
+            dwM[j] = 0;
+        }
+        c[ErrorSource.FEH] += tPerLnR * (RadiusMann2015.dLnRdFeh(fehForm) - TeffRadiusMann2015.dLnRdFeh(fehForm)) * s.sFeh;
+        c[ErrorSource.RADIUS_REL] = tPerLnR * fracR;
+        c[ErrorSource.TEFF_RADIUS_REL] = -tPerLnR * fracT;
+        c[ErrorSource.BLEND] = 0;
+        s.mask(c);
+        err = StarDeriver.norm(c);
+        boundBroken = mean > upper + 2 * err || mean < lower - 2 * err;
+        return true;
+    }
+
+    /**
      * χ² of the dominant regime's colours ({@link TeffEstimator#chi2()}), computed only when asked for: the class
      * iteration blends several times per star, but only the last blend is reported. NaN without an estimate.
      */
@@ -142,7 +201,11 @@ final class TeffBlend {
         // blue side (their other edges are where another regime takes over, not where the star's colour says stop)
         double upper = withM ? Math.min(f.tUpper, m.tUpper) : f.tUpper;
         double lower = Math.max(f.tLower, h.tLower);
+        fromRadius = false;
         if (!(sum > 0)) {
+            if (withM && redderThanMain && fromRadius(upper, lower)) {
+                return;
+            }
             mean = err = Double.NaN;
             dom = null;
             relationMask = 0;

@@ -41,9 +41,9 @@ public final class DerivedSchema {
         }
         c.add(new DerivedColumn("lum_class", "string", "", "src.class.luminosity", "main_sequence or evolved (log g boundary of Ciardi et al. 2011; M_Ks for red stars); null when unknown"));
         c.add(new DerivedColumn("regime", "string", "", "meta.code.class", "calibration regime that gave teff_k (dominant one in a blend): m_dwarf, fgk_dwarf, giant or hot; null when no Teff"));
-        c.add(d("teff_k", "K", "phys.temperature.effective", "effective temperature: inverse-variance mean of the in-range colour relations"));
+        c.add(d("teff_k", "K", "phys.temperature.effective", "effective temperature: inverse-variance mean of the in-range colour relations (flag TEFF_FROM_RADIUS: from the M_Ks radius)"));
         c.add(d("teff_err_k", "K", "stat.error;phys.temperature.effective", "1-sigma error of teff_k incl. relation scatter and zero point"));
-        c.add(new DerivedColumn("teff_from", "string", "", "meta.ref", "ids of the colour-Teff relations combined into teff_k (all regimes of a blend)"));
+        c.add(new DerivedColumn("teff_from", "string", "", "meta.ref", "ids of the colour-Teff relations combined into teff_k (all regimes of a blend); M15/radius: from the M_Ks radius"));
         c.add(d("teff_chi2", "", "stat.fit.chi2", "chi-square of the Teff estimates about their mean (two or more relations)"));
         c.add(d("bc_v", "mag", "phot.mag.bc", "bolometric correction in V (Flower 1996, Torres 2010 coefficients)"));
         c.add(d("bc_v_err", "mag", "stat.error;phot.mag.bc", "1-sigma error of bc_v from the Teff error"));

@@ -42,6 +42,14 @@ class ErrorSourceTest {
         l.add(new StarInput().parallax(50, 0.1).magnitude(Band.V, 9.64, 0.01).magnitude(Band.IC, 8.21, 0.01)
                 .magnitude(Band.J, 7.25, 0.02).magnitude(Band.H, 6.55, 0.02).magnitude(Band.KS, 6.40, 0.02)
                 .ebv(0.01, 0.01).feh(0, 0.1));
+        // M dwarfs without V and BP: Teff from the M_Ks radius through the Teff-radius relation (TeffFromRadiusTest),
+        // plain form (Proxima) and [Fe/H] form (Barnard's star without V and I_C)
+        l.add(TeffFromRadiusTest.proximaWithoutV());
+        StarInput barnardNoV = RegimeTest.barnardsStar();
+        barnardNoV.hasMag[Band.V.ordinal()] = false;
+        barnardNoV.hasMag[Band.IC.ordinal()] = false;
+        barnardNoV.magnitude(Band.G, 8.19, 0.01);
+        l.add(barnardNoV);
         return l;
     }
 
@@ -91,7 +99,7 @@ class ErrorSourceTest {
         }
         // every kind of source must have been exercised somewhere
         for (String s : new String[] {"mag_v", "mag_g", "mag_ks", "ebv", "feh", "logg", "scatter", "scatter_m_dwarf", "zero_point",
-                "g_to_v", "distance", "radius_relation", "mass_relation", "blend"}) {
+                "g_to_v", "distance", "radius_relation", "mass_relation", "blend", "teff_radius_relation"}) {
             assertTrue(seen.contains(s), "source never compared: " + s + " (compared: " + seen + ")");
         }
         assertTrue(compared > 40, "comparisons: " + compared);

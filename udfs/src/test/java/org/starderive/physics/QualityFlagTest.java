@@ -14,7 +14,7 @@ class QualityFlagTest {
     void masksAreTheValuesOfTheReadmeFlagTable() {
         // README, "Quality flags": the value column of each flag (part of the output format); bit 19 unused
         long[] values = {1, 2, 4, 8, 16, 32, 64, 128, 256, 512, 1024, 2048, 4096, 8192, 16384, 32768, 65536, 131072,
-            262144, 1048576, 2097152};
+            262144, 1048576, 2097152, 4194304};
         QualityFlag[] flags = QualityFlag.values();
         assertEquals(values.length, flags.length);
         for (int i = 0; i < flags.length; i++) {

@@ -34,15 +34,31 @@ class RedStarRegimeTest {
 
     @Test
     void lateMDwarfWithoutVOrBpGetsNoFgkTemperature() {
-        // G−Ks 4.2: 1.4 mag beyond the C21 dwarf red edge; J−Ks 0.70: inside the C10 range
+        // G−Ks 4.2: 1.4 mag beyond the C21 dwarf red edge; J−Ks 0.70: inside the C10 range. With a distance (M_Ks 7.89)
+        // the Teff comes from the M_Ks radius (TeffFromRadiusTest checks its numbers), never from J−Ks
         StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(noBlueBands(4.2, 0.70), new StarResult());
-        assertTrue(Double.isNaN(r.teffK), "no Teff: the star is redder than any FGK relation reaches, got " + r.teffK);
-        assertTrue(r.has(QualityFlag.COLOUR_OUT_OF_RANGE));
-        assertFalse(r.has(QualityFlag.TEFF_COLOURS_DISAGREE));
-        assertNull(r.regime);
-        assertTrue(Double.isNaN(r.lumLsun) && Double.isNaN(r.radiusRsun) && Double.isNaN(r.massMsun));
+        assertTrue(r.has(QualityFlag.TEFF_FROM_RADIUS), "flags " + QualityFlag.names(r.flags));
+        assertEquals(0L, r.teffRelations, "no colour relation, J−Ks least of all: " + r.teffFrom());
+        assertEquals(TeffRadiusMann2015.ID, r.teffFrom());
+        assertEquals(Regime.M_DWARF, r.regime);
+        // below the C21 G−Ks dwarf relation's red edge (4075 K at G−Ks 2.80), where the colour puts the star
+        double edge = TeffRelations.byId("C21/G-Ks/dwarf").teff(2.80, 0, 4.6);
+        assertTrue(r.teffK < edge, "Teff " + r.teffK + " above the colour's bound " + edge);
+        assertFalse(r.has(QualityFlag.COLOUR_OUT_OF_RANGE) || r.has(QualityFlag.TEFF_COLOURS_DISAGREE));
         // the distance does not depend on the colours
         assertEquals(1000 / PLX_MAS, r.distPc, 1e-9);
+    }
+
+    @Test
+    void withoutADistanceTheLateMDwarfGetsNoTemperatureAtAll() {
+        StarInput in = noBlueBands(4.2, 0.70);
+        in.hasParallax = in.hasParallaxErr = false;
+        StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
+        assertTrue(Double.isNaN(r.teffK), "no Teff: the star is redder than any FGK relation reaches, got " + r.teffK);
+        assertTrue(r.has(QualityFlag.COLOUR_OUT_OF_RANGE));
+        assertFalse(r.has(QualityFlag.TEFF_COLOURS_DISAGREE) || r.has(QualityFlag.TEFF_FROM_RADIUS));
+        assertNull(r.regime);
+        assertTrue(Double.isNaN(r.lumLsun) && Double.isNaN(r.radiusRsun) && Double.isNaN(r.massMsun));
     }
 
     @Test
@@ -57,10 +73,19 @@ class RedStarRegimeTest {
     @Test
     void monteCarloDrawsJudgeTheRegimeTheSameWay() {
         double[][] q = new double[MonteCarloDeriver.NQ][3];
-        new MonteCarloDeriver(DeriveSettings.defaults(), 200, 7).percentiles(noBlueBands(4.2, 0.70), 11, q);
+        StarInput in = noBlueBands(4.2, 0.70);
+        new MonteCarloDeriver(DeriveSettings.defaults(), 200, 7).percentiles(in, 11, q);
         int teff = java.util.Arrays.asList(MonteCarloDeriver.QUANTITIES).indexOf("teff");
         assertTrue(teff >= 0, "teff is a Monte Carlo quantity");
-        assertTrue(Double.isNaN(q[teff][1]), "no drawn Teff either, got median " + q[teff][1]);
+        // every draw takes the radius route too: the median is the nominal Teff within a tenth of its error, not a
+        // K dwarf's 4300-5300 K from J−Ks
+        StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
+        assertEquals(r.teffK, q[teff][1], 0.15 * r.teffErrK, "drawn median");
+        assertTrue(q[teff][2] < 4100, "84th percentile " + q[teff][2]);
+        // without a distance, no drawn Teff either
+        in.hasParallax = in.hasParallaxErr = false;
+        new MonteCarloDeriver(DeriveSettings.defaults(), 200, 7).percentiles(in, 11, q);
+        assertTrue(Double.isNaN(q[teff][1]), "no drawn Teff without a distance, got median " + q[teff][1]);
     }
 
     @Test
