@@ -19,7 +19,10 @@ import org.starderive.physics.Band;
  *       Below 0.68 M⊙ (about 4250 K, so everywhere the job may use it) the radius is Mann et al. 2015's R(M_Ks)
  *       (off by its 2.89 % scatter) at the absolute Ks of the Mann et al. 2019 mass relation run backwards (mass
  *       drawn off by its 2 % scatter); from 0.68 to 0.82 M⊙ ln R goes linearly from that radius to Eker's (the two
- *       are 7–15 % apart at 0.6–0.75 M⊙: our choice, so the sequence has no gap); Teff from L and R. Main-sequence stars cooler than 4200 K are M dwarfs,
+ *       are 7–15 % apart at 0.6–0.75 M⊙: our choice, so the sequence has no gap); Teff from L and R, except that
+ *       M dwarfs follow the Mann et al. 2015 Teff–radius relation: Teff where it gives the star's radius (off by its
+ *       13.4 % scatter in R), L = R² (Teff/Teff⊙)⁴, ln Teff blended towards the Eker one from 0.68 to 0.82 M⊙ as ln R
+ *       is (the Eker luminosities alone put M dwarfs ~6 % cooler than that relation). Main-sequence stars cooler than 4200 K are M dwarfs,
  *       their photometry built from absolute Ks up. Evolved stars from simple loci of our own (below).</li>
  *   <li><b>Positions.</b> Exponential disc: scale height 300 pc, scale length 2.6 kpc (Jurić et al. 2008, ApJ 673,
  *       864, thin disc, from memory), Sun at R = 8.2 kpc (Bland-Hawthorn &amp; Gerhard 2016, from memory), z = 0;
@@ -192,9 +195,10 @@ public final class ForwardModel {
             double uR = Math.max(0, Math.min(1, (M_BLEND_HI_MSUN - mass) / (M_BLEND_HI_MSUN - M_BLEND_LO_MSUN)));
             double zMass = g.sample();
             double zRadius = g.sample();
+            double rStar = Double.NaN;
             if (uR > 0) {
                 double mKsStar = mannMksOfMass(mass * (1 + M19_MASS_SCATTER * zMass));
-                double rStar = mannRadius(mKsStar) * (1 + M15_RADIUS_SCATTER * zRadius);
+                rStar = mannRadius(mKsStar) * (1 + M15_RADIUS_SCATTER * zRadius);
                 if (!Double.isNaN(mKsStar) && rStar > 0) {
                     mKs = mKsStar;
                     radius = uR == 1 ? rStar : Math.exp(uR * Math.log(rStar) + (1 - uR) * Math.log(radius));
@@ -202,6 +206,18 @@ public final class ForwardModel {
             }
             if (mass <= 1.5) {
                 teff = TEFF_SUN_K * Math.pow(lum / (radius * radius), 0.25);
+                if (!Double.isNaN(mKs)) {
+                    // M dwarfs lie on Mann et al. 2015's Teff-radius relation, off by its 13.4 % scatter in R at fixed
+                    // Teff: Teff where the relation gives the star's Mann radius, and L from Stefan-Boltzmann (the
+                    // Eker luminosity would put a 0.3 M_sun dwarf near 3160 K, ~6 % cooler than the relation says).
+                    // Across the mass blend ln Teff goes linearly from this Teff to the Eker one, as ln R does; where
+                    // the radius lies off the relation's rising branch (2800-4100 K) the Eker Teff stays
+                    double tMann = mannTeffOfRadius(rStar / (1 + M15_TEFF_RADIUS_SCATTER * g.sample()));
+                    if (!Double.isNaN(tMann)) {
+                        teff = Math.exp(uR * Math.log(tMann) + (1 - uR) * Math.log(teff));
+                        lum = radius * radius * Math.pow(teff / TEFF_SUN_K, 4);
+                    }
+                }
             } else {
                 teff = ekerTeff(mass);
                 radius = Math.sqrt(lum) * Math.pow(TEFF_SUN_K / teff, 2);

@@ -88,6 +88,39 @@ final class IndependentRelations {
 
     static final double M15_RADIUS_SCATTER = 0.0289;
 
+    /**
+     * Mann et al. 2015 Table 1, Teff–radius relation without [Fe/H]: R/R⊙ = 10.5440 − 33.7546 X + 35.1909 X² −
+     * 11.5928 X³, X = Teff / 3500 K, scatter 13.4 % in R (as in the first author's code release; three independent
+     * transcriptions agree).
+     */
+    static double mannRadiusOfTeff(double teffK) {
+        double x = teffK / 3500.0;
+        return 10.5440 - 33.7546 * x + 35.1909 * x * x - 11.5928 * x * x * x;
+    }
+
+    static final double M15_TEFF_RADIUS_SCATTER = 0.134;
+
+    /**
+     * Teff at which {@link #mannRadiusOfTeff} gives {@code radiusRsun}, by bisection on 2800–4100 K (the rising branch
+     * the job inverts too; the cubic's minimum is at 2733 K); NaN outside.
+     */
+    static double mannTeffOfRadius(double radiusRsun) {
+        double lo = 2800;
+        double hi = 4100;
+        if (!(radiusRsun >= mannRadiusOfTeff(lo) && radiusRsun <= mannRadiusOfTeff(hi))) {
+            return Double.NaN;
+        }
+        for (int i = 0; i < 60; i++) {
+            double m = 0.5 * (lo + hi);
+            if (mannRadiusOfTeff(m) < radiusRsun) {
+                lo = m;
+            } else {
+                hi = m;
+            }
+        }
+        return 0.5 * (lo + hi);
+    }
+
     /** Mann et al. 2019, ApJ 871, 63, Table 6, n = 5 fit: log10 M = Σ a_i (M_Ks − 7.5)^i, scatter 2.0 %. */
     static double mannLogMass(double mKs) {
         double x = mKs - 7.5;

@@ -1,6 +1,7 @@
 package org.starderive.sample;
 
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
 import static org.starderive.sample.IndependentRelations.*;
 
 import org.junit.jupiter.api.Test;
@@ -12,6 +13,7 @@ import org.starderive.physics.GaiaToJohnsonRiello2021;
 import org.starderive.physics.MassLuminosityEker2018;
 import org.starderive.physics.MassMann2019;
 import org.starderive.physics.RadiusMann2015;
+import org.starderive.physics.TeffRadiusMann2015;
 import org.starderive.physics.TeffRelation;
 import org.starderive.physics.TeffRelations;
 
@@ -36,6 +38,11 @@ class IndependentRelationsTest {
         assertEquals(0.244, Math.pow(10, mannLogMass(7.36)), 0.0006);
         assertEquals(0.164, Math.pow(10, mannLogMass(8.20)), 0.0006);
         assertEquals(6.55, mannMksOfMass(Math.pow(10, mannLogMass(6.55))), 1e-9);
+        // Mann et al. 2015 Table 1, Teff-radius: at X = 1 the cubic is the sum of its coefficients, 0.3875 R_sun at
+        // 3500 K (arithmetic); the inverse on the rising branch returns the Teff it was given
+        assertEquals(0.3875, mannRadiusOfTeff(3500), 1e-12);
+        assertEquals(3300, mannTeffOfRadius(mannRadiusOfTeff(3300)), 1e-6);
+        assertTrue(Double.isNaN(mannTeffOfRadius(0.12)) && Double.isNaN(mannTeffOfRadius(0.7)), "outside 2800-4100 K");
         // Flower 1996 / Torres 2010: B-V 0.00 -> 9531 K, 0.65 -> 5718 K, -0.20 -> 16958 K
         assertEquals(9531, flowerTeff(0.00), 1);
         assertEquals(5718, flowerTeff(0.65), 1);
@@ -118,6 +125,11 @@ class IndependentRelationsTest {
         for (double mks = 4.7; mks <= 9.7; mks += 0.25) {
             same(RadiusMann2015.radiusRsun(mks, Double.NaN), mannRadius(mks), "Mann 2015 R at " + mks);
             same(MassMann2019.logMass(mks, Double.NaN), mannLogMass(mks), "Mann 2019 M at " + mks);
+        }
+        for (double t = 2810; t <= 4090; t += 40) { // inside the branch: at its ends the two copies may round apart
+            same(TeffRadiusMann2015.radiusRsun(t, Double.NaN), mannRadiusOfTeff(t), "Mann 2015 R(Teff) at " + t);
+            double r = mannRadiusOfTeff(t);
+            same(TeffRadiusMann2015.teffK(r, Double.NaN), mannTeffOfRadius(r), "Mann 2015 Teff(R) at " + r);
         }
         TeffRelation f96 = TeffRelations.byId("F96/B-V");
         for (double bv = -0.35; bv <= 0.5; bv += 0.05) {
