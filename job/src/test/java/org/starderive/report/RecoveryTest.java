@@ -55,8 +55,11 @@ class RecoveryTest {
         }
         perRegime(r);
         // who gets parameters: main-sequence stars of 2800-30,000 K with true parallax/error > 10 that get Teff, L,
-        // R and mass (the rest lack the bands a relation needs at the survey's depth; see the closing note of #11)
-        assertTrue(r.msReachShare > 0.85, "share of main-sequence stars with all four: " + r.msReachShare);
+        // R and mass: issue #11's target, 90 % (the rest lack the bands or the distance a relation needs at the
+        // survey's depth, or lie beyond the relations' ranges)
+        assertTrue(r.msReachShare >= 0.90, "share of main-sequence stars with all four: " + r.msReachShare);
+        System.out.println("recovery reach: main-sequence stars of 2800-30,000 K at true parallax/error > 10 with Teff, L, R "
+                + "and mass: " + r.msReachShare);
         for (String f : List.of("index.md", "index.html", "recovery.json")) {
             assertTrue(Files.size(out.resolve(f)) > 0, f);
         }
