@@ -151,7 +151,7 @@ public final class RecoveryReport {
     public static Result run(SparkSession spark, String derivedDir, String truthDir, String outDir) throws IOException {
         Dataset<Row> d = spark.read().parquet(derivedDir);
         Dataset<Row> t = spark.read().parquet(truthDir);
-        for (String c : List.of("star_id", "flags", "dist_pc", "teff_k", "parallax_err_mas")) {
+        for (String c : List.of("star_id", "flags", "dist_pc", "teff_k", "teff_err_k", "parallax_err_mas")) {
             if (!d.schema().getFieldIndex(c).isDefined()) {
                 throw JobException.input("Derived catalogue " + derivedDir + ": missing column '" + c
                         + "' (rule: recovery reads a catalogue derived from the synthetic survey with --layout full, which keeps the observed parallax error)");
@@ -189,16 +189,21 @@ public final class RecoveryReport {
                     break;
                 }
             }
-            // flags: share of stars, and median |Teff error| and |distance error| with and without the flag
+            // flags: share of stars, and median |Teff error| and |distance error| with and without the flag; and the
+            // median |Teff error| in units of the star's own Teff error (faint stars' noisy colours have large errors
+            // but rarely disagree beyond them: in |error| alone a flag that works can look useless)
+            String zTeff = "abs(teff_k - true_teff_k) / teff_err_k";
             for (QualityFlag f : QualityFlag.values()) {
                 String has = "(flags & " + f.mask() + ") <> 0";
                 Row r = j.agg(expr("avg(CASE WHEN " + has + " THEN 1.0 ELSE 0.0 END)"),
                         expr("percentile_approx(CASE WHEN " + has + " THEN abs(teff_k / true_teff_k - 1) END, 0.5, 10000)"),
                         expr("percentile_approx(CASE WHEN NOT " + has + " THEN abs(teff_k / true_teff_k - 1) END, 0.5, 10000)"),
                         expr("percentile_approx(CASE WHEN " + has + " THEN abs(dist_pc / true_dist_pc - 1) END, 0.5, 10000)"),
-                        expr("percentile_approx(CASE WHEN NOT " + has + " THEN abs(dist_pc / true_dist_pc - 1) END, 0.5, 10000)")).first();
-                double[] v = new double[5];
-                for (int i = 0; i < 5; i++) {
+                        expr("percentile_approx(CASE WHEN NOT " + has + " THEN abs(dist_pc / true_dist_pc - 1) END, 0.5, 10000)"),
+                        expr("percentile_approx(CASE WHEN " + has + " THEN " + zTeff + " END, 0.5, 10000)"),
+                        expr("percentile_approx(CASE WHEN NOT " + has + " THEN " + zTeff + " END, 0.5, 10000)")).first();
+                double[] v = new double[7];
+                for (int i = 0; i < 7; i++) {
                     v[i] = r.isNullAt(i) ? Double.NaN : ((Number) r.get(i)).doubleValue();
                 }
                 res.flags.put(f.name(), v);
@@ -247,6 +252,10 @@ public final class RecoveryReport {
 
     private static String pct(double v) {
         return Double.isNaN(v) ? "–" : String.format("%+.2f %%", 100 * v);
+    }
+
+    private static String ratio(double v) {
+        return Double.isNaN(v) ? "–" : String.format("%.2f", v);
     }
 
     private static String frac(double v) {
@@ -320,9 +329,12 @@ public final class RecoveryReport {
                 (long) v[1], v[0] == 0 ? 0 : 100 * v[1] / v[0], (long) v[2], (long) v[3], (long) v[4],
                 v[0] == 0 ? 0 : 100 * v[4] / v[0], pct(v[5]))));
         sb.append("\n## Flags: how often, and are the flagged stars the badly recovered ones?\n\n")
-          .append("| flag | share of stars | median abs. Teff error, flagged | not flagged | median abs. distance error, flagged | not flagged |\n|---|---|---|---|---|---|\n");
-        res.flags.forEach((f, v) -> sb.append(String.format("| `%s` | %s | %s | %s | %s | %s |%n", f, frac(v[0]),
-                pct(v[1]).replace("+", ""), pct(v[2]).replace("+", ""), pct(v[3]).replace("+", ""), pct(v[4]).replace("+", ""))));
+          .append("Teff error in units of the star's own Teff error (|error|/σ): a Gaussian's median is 0.67; above it, the ")
+          .append("errors claim too much.\n\n")
+          .append("| flag | share of stars | median abs. Teff error, flagged | not flagged | median Teff abs. error/σ, flagged | not flagged | median abs. distance error, flagged | not flagged |\n|---|---|---|---|---|---|---|---|\n");
+        res.flags.forEach((f, v) -> sb.append(String.format("| `%s` | %s | %s | %s | %s | %s | %s | %s |%n", f, frac(v[0]),
+                pct(v[1]).replace("+", ""), pct(v[2]).replace("+", ""), ratio(v[5]), ratio(v[6]),
+                pct(v[3]).replace("+", ""), pct(v[4]).replace("+", ""))));
         String md = sb.toString();
         Files.writeString(out.resolve("index.md"), md, StandardCharsets.UTF_8);
         Files.writeString(out.resolve("index.html"), Html.fromReportMarkdown(md, "starderive recovery report"), StandardCharsets.UTF_8);

@@ -97,6 +97,9 @@ class RecoveryTest {
         System.out.println("recovery flags: colour Teff |error|/sigma with TEFF_COLOURS_DISAGREE " + m.getDouble(0) + ", without "
                 + m.getDouble(1) + "; Teff from the radius at parallax/error > 10: " + m.getLong(4) + " stars, coverage "
                 + m.getDouble(2) + ", median bias " + m.getDouble(3));
+        // the report's own flag table says the same, in units of each star's error (all Teffs, radius route included)
+        double[] disagree = r.flags.get("TEFF_COLOURS_DISAGREE");
+        assertTrue(disagree[5] > disagree[6], "report: median |Teff error|/sigma flagged " + disagree[5] + " vs not " + disagree[6]);
         double[] withheld = r.flags.get("DISTANCE_WITHHELD");
         assertTrue(Double.isNaN(withheld[3]) && withheld[0] > 0.2, "withheld: share " + withheld[0] + ", |d error| " + withheld[3]);
     }
