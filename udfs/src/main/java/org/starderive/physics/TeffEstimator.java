@@ -38,6 +38,8 @@ final class TeffEstimator {
     private final double[] shared;
     /** The shared sources the used estimates have terms from (bit j: source j). */
     private long sharedSources;
+    /** Whether every entry of the used estimates' rows is finite. */
+    private boolean sharedFinite;
     /** Per used estimate, the bands it has terms from (bit b: band b); every estimate has E(B−V) and [Fe/H] terms. */
     private final long[] bandsOf;
     /** Per used estimate: its relation's own scatter, squared (independent between relations). */
@@ -62,6 +64,10 @@ final class TeffEstimator {
     boolean anyOut;
     boolean extrapolated;
     boolean usesLogg;
+    /**
+     * Bounds from colours beyond an edge by more than twice their error: cooler than the red edge's Teff (not kept for
+     * the hot regime), hotter than the blue edge's (not kept for the M-dwarf regime).
+     */
     double tUpper;
     double tLower;
 
@@ -124,11 +130,7 @@ final class TeffEstimator {
         // so only the sources both estimates have are visited — their common bands, then E(B−V) and [Fe/H]. With a
         // non-finite entry (0 × ∞ is NaN) every source is
         double[] g = shared;
-        boolean finite = true;
-        for (int e = 0; e < m * SHARED; e++) {
-            finite &= Double.isFinite(g[e]);
-        }
-        if (finite) {
+        if (sharedFinite) {
             int ebv = ErrorSource.EBV;
             int feh = ErrorSource.FEH;
             for (int i = 0; i < m; i++) {
@@ -201,6 +203,7 @@ final class TeffEstimator {
         }
         mask = 0;
         sharedSources = 0;
+        sharedFinite = true;
         n = 0;
         anyColour = anyOut = extrapolated = usesLogg = false;
         tUpper = Double.POSITIVE_INFINITY;
@@ -244,6 +247,10 @@ final class TeffEstimator {
         // a draw needs only the edge bounds of the FGK and giant relations (they decide the regime, TeffBlend);
         // the other regimes' bounds only flag the nominal estimate
         boolean boundsDecideRegime = regime == Regime.FGK_DWARF || regime == Regime.GIANT;
+        // the M-dwarf relations bound only from the red side, the hot one only from the blue side: their other edge is
+        // where another regime takes over, and TeffBlend reads no such bound (the hot edge would cost a power of 10)
+        boolean upperBounds = regime != Regime.HOT;
+        boolean lowerBounds = regime != Regime.M_DWARF;
         for (int kk = 0; kk < ofRegime.length; kk++) {
             int k = ofRegime[kk];
             TeffRelation r = relations[k];
@@ -275,9 +282,13 @@ final class TeffEstimator {
             if (!in && (!vo || boundsDecideRegime)) {
                 double margin = 2 * Math.sqrt(sx2);
                 if (x > r.colourMax() + margin) {
-                    tUpper = Math.min(tUpper, r.teff(r.colourMax(), feh, logg, aux));
+                    if (upperBounds) {
+                        tUpper = Math.min(tUpper, r.teff(r.colourMax(), feh, logg, aux));
+                    }
                 } else if (x < r.colourMin() - margin) {
-                    tLower = Math.max(tLower, r.teff(r.colourMin(), feh, logg, aux));
+                    if (lowerBounds) {
+                        tLower = Math.max(tLower, r.teff(r.colourMin(), feh, logg, aux));
+                    }
                 }
             }
             if (!in && (!allowExtrapolation || r.form() == TeffRelation.Form.MANN2015)) {
@@ -317,6 +328,10 @@ final class TeffEstimator {
                     bands |= 1L << ji | 1L << hi;
                 }
                 g[row + ErrorSource.FEH] += dFeh * s.sFeh;
+                // the other entries of the row are 0
+                sharedFinite &= Double.isFinite(g[row + bi]) & Double.isFinite(g[row + ri])
+                        & Double.isFinite(g[row + ErrorSource.EBV]) & Double.isFinite(g[row + ErrorSource.FEH])
+                        & Double.isFinite(g[row + ji]) & Double.isFinite(g[row + hi]);
                 bandsOf[n] = bands;
                 sharedSources |= bands | 1L << ErrorSource.EBV | 1L << ErrorSource.FEH;
                 ownVar[n] = sr * sr;
