@@ -160,37 +160,42 @@ final class TeffEstimator {
                 }
             }
         }
-        for (int i = 0; i < m; i++) { // Cholesky C = L Lᵀ, L in the lower triangle
-            for (int j = 0; j <= i; j++) {
-                double sum = cov[i * m + j];
-                for (int k = 0; k < j; k++) {
-                    sum -= cov[i * m + k] * cov[j * m + k];
-                }
-                if (i == j) {
-                    if (!(sum > 0)) {
-                        return Double.NaN;
-                    }
-                    cov[i * m + i] = Math.sqrt(sum);
-                } else {
-                    cov[i * m + j] = sum / cov[j * m + j];
-                }
-            }
-        }
+        // Cholesky C = L Lᵀ (L in the lower triangle) row by row, each row's forward substitution for a (in resid) and
+        // b (in ones) as soon as the row is known: the same operations in the same order as factorising first
         double aa = 0;
         double ab = 0;
         double bb = 0;
-        for (int i = 0; i < m; i++) { // forward substitution for a (in resid) and b (in ones)
+        for (int i = 0; i < m; i++) {
+            int ri = i * m;
+            for (int j = 0; j < i; j++) {
+                int rj = j * m;
+                double sum = cov[ri + j];
+                for (int k = 0; k < j; k++) {
+                    sum -= cov[ri + k] * cov[rj + k];
+                }
+                cov[ri + j] = sum / cov[rj + j];
+            }
+            double sum = cov[ri + i];
             double sa = tEst[i] - mean;
             double sb = 1;
             for (int k = 0; k < i; k++) {
-                sa -= cov[i * m + k] * resid[k];
-                sb -= cov[i * m + k] * ones[k];
+                double lik = cov[ri + k];
+                sum -= lik * lik;
+                sa -= lik * resid[k];
+                sb -= lik * ones[k];
             }
-            resid[i] = sa / cov[i * m + i];
-            ones[i] = sb / cov[i * m + i];
-            aa += resid[i] * resid[i];
-            ab += resid[i] * ones[i];
-            bb += ones[i] * ones[i];
+            if (!(sum > 0)) {
+                return Double.NaN;
+            }
+            double lii = Math.sqrt(sum);
+            cov[ri + i] = lii;
+            double ai = sa / lii;
+            double bi = sb / lii;
+            resid[i] = ai;
+            ones[i] = bi;
+            aa += ai * ai;
+            ab += ai * bi;
+            bb += bi * bi;
         }
         return Math.max(0, aa - ab * ab / bb);
     }
