@@ -52,10 +52,20 @@ public final class BolometricCorrectionFlower1996 {
 
     /** BC_V in mag at Teff in K; NaN for non-positive or NaN Teff. */
     public static double bcV(double teffK) {
+        return bcV(teffK, logTeff(teffK));
+    }
+
+    /** log10 Teff as {@link #bcV(double, double)} and {@link #dBcVdTeff(double, double)} take it (NaN for Teff ≤ 0). */
+    static double logTeff(double teffK) {
+        return teffK > 0 ? Math.log10(teffK) : Double.NaN;
+    }
+
+    /** {@link #bcV(double)} where {@code logT = logTeff(teffK)} is already known. */
+    static double bcV(double teffK, double logT) {
         if (!(teffK > 0)) {
             return Double.NaN;
         }
-        double x = Math.log10(teffK);
+        double x = logT;
         double[] k = coefficients(x);
         double s = 0;
         for (int i = k.length - 1; i >= 0; i--) {
@@ -66,10 +76,15 @@ public final class BolometricCorrectionFlower1996 {
 
     /** dBC_V/dTeff in mag per K. */
     public static double dBcVdTeff(double teffK) {
+        return dBcVdTeff(teffK, logTeff(teffK));
+    }
+
+    /** {@link #dBcVdTeff(double)} where {@code logT = logTeff(teffK)} is already known. */
+    static double dBcVdTeff(double teffK, double logT) {
         if (!(teffK > 0)) {
             return Double.NaN;
         }
-        double x = Math.log10(teffK);
+        double x = logT;
         double[] k = coefficients(x);
         double s = 0;
         for (int i = k.length - 1; i >= 1; i--) {

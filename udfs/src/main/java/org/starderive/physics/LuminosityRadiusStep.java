@@ -68,13 +68,15 @@ final class LuminosityRadiusStep {
         // the BC_V route (FGK, giants, hot stars; M dwarfs without a usable M_Ks)
         double mbolAbsBc = Double.NaN;
         double lnThetaBc = Double.NaN;
-        double beta = BolometricCorrectionFlower1996.dBcVdTeff(temp);
+        // BC_V and its slope from one log10 Teff
+        double logT = BolometricCorrectionFlower1996.logTeff(temp);
+        double beta = BolometricCorrectionFlower1996.dBcVdTeff(temp, logT);
+        double bc = BolometricCorrectionFlower1996.bcV(temp, logT);
         if (wM < 1 || !mRadiusRoute(haveDist)) {
-            out.bcV = BolometricCorrectionFlower1996.bcV(temp);
+            out.bcV = bc;
             out.bcVErr = Math.abs(beta) * tErr;
         }
         if (!Double.isNaN(s.v0)) {
-            double bc = BolometricCorrectionFlower1996.bcV(temp);
             double mbolApp = s.v0 + bc;
             if (!vo) {
                 // V₀ and Teff share sources (V is in the colours): contributions are added source by source

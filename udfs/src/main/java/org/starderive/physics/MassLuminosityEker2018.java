@@ -49,7 +49,12 @@ public final class MassLuminosityEker2018 {
 
     /** 1σ scatter of ln M from {@link #LOGL_SCATTER_DEX} at log L: ln10 · σ(log L) · d log M / d log L. */
     public static double lnMassScatter(double logL) {
-        return Math.log(10) * LOGL_SCATTER_DEX * dLogMassDLogL(logL);
+        return lnMassScatterAtSlope(dLogMassDLogL(logL));
+    }
+
+    /** {@link #lnMassScatter} where {@code slope = dLogMassDLogL(logL)} is already known. */
+    static double lnMassScatterAtSlope(double slope) {
+        return Math.log(10) * LOGL_SCATTER_DEX * slope;
     }
 
     /** Forward relation: log10 L/L⊙ for a main-sequence mass in M⊙; NaN outside 0.179–31. */

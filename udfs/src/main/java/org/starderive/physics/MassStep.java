@@ -40,7 +40,8 @@ final class MassStep {
         if (w == 0 && Double.isNaN(logME)) {
             return;
         }
-        double ekerLnScatter = MassLuminosityEker2018.lnMassScatter(logL);
+        double ekerSlope = MassLuminosityEker2018.dLogMassDLogL(logL); // serves the scatter and the errors below
+        double ekerLnScatter = MassLuminosityEker2018.lnMassScatterAtSlope(ekerSlope);
         double mannFrac = MassMann2019.scatterFrac(fehForm);
         double lnM = (w < 1 ? (1 - w) * (logME * LN10 + s.dz(ErrorSource.MASS_REL, ekerLnScatter)) : 0)
                 + (w > 0 ? w * (logMM * LN10 + s.dz(ErrorSource.MASS_REL, mannFrac)) : 0);
@@ -59,7 +60,7 @@ final class MassStep {
             double[] cLnR = lr.cLnR;
             double[] cKs = s.cKs;
             double[] dwM = t.dwM;
-            double slope = w < 1 ? MassLuminosityEker2018.dLogMassDLogL(logL) : 0;
+            double slope = w < 1 ? ekerSlope : 0;
             double dM = w > 0 ? MassMann2019.dLnMdMks(mKs, fehForm) : 0;
             for (int j = 0; j < NSRC; j++) {
                 double e = w < 1 ? LN10 * slope * -0.4 * cMbol[j] : 0;

@@ -26,27 +26,28 @@ final class TeffEstimator {
     private final boolean allowExtrapolation;
     private final double[] tEst;
     private final double[] gradBand = new double[Band.COUNT];
-    /** Most shared-measurement terms one estimate has: its two bands, E(B−V) twice, J and H, [Fe/H]. */
-    private static final int MAX_TERMS = 7;
     /**
-     * Per used estimate i, its first-order contributions from the shared measurements (bands, E(B−V), [Fe/H]) as
-     * terms in the order they arise: source termSource[i · MAX_TERMS + k], value termValue[…]; nTerms[i] of them.
-     * Kept sparse while estimating (a star is estimated several times); χ² makes them dense once.
+     * The error sources of the shared measurements, 0 … SHARED − 1: the bands, E(B−V) and [Fe/H] ({@link ErrorSource}
+     * numbers them first).
      */
-    private final int[] termSource;
-    private final double[] termValue;
-    private final int[] nTerms;
-    /** χ² scratch: the shared sources used, ascending; each one's column; the dense columns (source-major). */
-    private final int[] activeSources = new int[ErrorSource.COUNT];
-    private final int[] columnOf = new int[ErrorSource.COUNT];
-    private final double[] bySource;
+    private static final int SHARED = ErrorSource.FEH + 1;
+    /**
+     * Per used estimate i, its first-order contributions from the shared measurements: row i (SHARED entries, by
+     * source), each entry the sum of its terms in the order they arise (E(B−V) enters a J−H form twice).
+     */
+    private final double[] shared;
+    /** The shared sources the used estimates have terms from (bit j: source j). */
+    private long sharedSources;
+    /** Whether every entry of the used estimates' rows is finite. */
+    private boolean sharedFinite;
+    /** Per used estimate, the bands it has terms from (bit b: band b); every estimate has E(B−V) and [Fe/H] terms. */
+    private final long[] bandsOf;
     /** Per used estimate: its relation's own scatter, squared (independent between relations). */
     private final double[] ownVar;
     /** Covariance matrix of the used estimates (row-major, n × n), factorised in place. */
     private final double[] cov;
     private final double[] resid;
     private final double[] ones;
-    private final boolean[] groupUsed;
     /** Indices of the relations of each regime (by ordinal), in list order. */
     private final int[][] byRegime = new int[Regime.values().length][];
 
@@ -63,6 +64,10 @@ final class TeffEstimator {
     boolean anyOut;
     boolean extrapolated;
     boolean usesLogg;
+    /**
+     * Bounds from colours beyond an edge by more than twice their error: cooler than the red edge's Teff (not kept for
+     * the hot regime), hotter than the blue edge's (not kept for the M-dwarf regime).
+     */
     double tUpper;
     double tLower;
 
@@ -73,11 +78,8 @@ final class TeffEstimator {
         this.allowExtrapolation = allowExtrapolation;
         this.tEst = new double[relations.length];
         this.groupIds = new int[relations.length];
-        this.groupUsed = new boolean[relations.length];
-        this.bySource = new double[ErrorSource.COUNT * relations.length];
-        this.termSource = new int[MAX_TERMS * relations.length];
-        this.termValue = new double[MAX_TERMS * relations.length];
-        this.nTerms = new int[relations.length];
+        this.shared = new double[SHARED * relations.length];
+        this.bandsOf = new long[relations.length];
         this.ownVar = new double[relations.length];
         this.cov = new double[relations.length * relations.length];
         this.resid = new double[relations.length];
@@ -117,80 +119,83 @@ final class TeffEstimator {
      */
     private double correlatedChi2() {
         int m = n;
-        // the sources the used estimates share, ascending (as a dense loop over all sources would add them: the
-        // same sums to the last bit), each with its own column
-        int[] act = activeSources;
-        int na = 0;
-        Arrays.fill(columnOf, -1);
-        for (int i = 0; i < m; i++) {
-            for (int k = 0; k < nTerms[i]; k++) {
-                int q = termSource[i * MAX_TERMS + k];
-                if (columnOf[q] < 0) {
-                    columnOf[q] = 0;
-                    act[na++] = q;
-                }
-            }
-        }
-        Arrays.sort(act, 0, na);
-        int nr = relations.length;
-        for (int a = 0; a < na; a++) {
-            columnOf[act[a]] = a * nr;
-        }
-        Arrays.fill(bySource, 0, na * nr, 0);
-        for (int i = 0; i < m; i++) { // the terms of each estimate, added in the order they arose
-            for (int k = 0; k < nTerms[i]; k++) {
-                int t = i * MAX_TERMS + k;
-                bySource[columnOf[termSource[t]] + i] += termValue[t];
-            }
-        }
         for (int i = 0; i < m; i++) {
             for (int j = 0; j <= i; j++) {
                 cov[i * m + j] = i == j ? ownVar[i] : 0;
             }
         }
-        // source by source: each element still sums its terms in source order, but consecutive additions go to
-        // different elements, so they need not wait for each other
-        for (int a = 0; a < na; a++) {
-            int col = a * nr;
+        // the terms of the sources the used estimates share, each element summing its products in ascending source
+        // order (as a dense loop over all sources would add them). A source an estimate has no term from is an exact 0
+        // in its row: with finite entries its products are ±0 and leave an element as it is (an element is never −0),
+        // so only the sources both estimates have are visited — their common bands, then E(B−V) and [Fe/H]. With a
+        // non-finite entry (0 × ∞ is NaN) every source is
+        double[] g = shared;
+        if (sharedFinite) {
+            int ebv = ErrorSource.EBV;
+            int feh = ErrorSource.FEH;
             for (int i = 0; i < m; i++) {
-                double gi = bySource[col + i];
-                int row = i * m;
+                int ri = i * SHARED;
+                long bi = bandsOf[i];
                 for (int j = 0; j <= i; j++) {
-                    cov[row + j] += gi * bySource[col + j];
-                }
-            }
-        }
-        for (int i = 0; i < m; i++) { // Cholesky C = L Lᵀ, L in the lower triangle
-            for (int j = 0; j <= i; j++) {
-                double sum = cov[i * m + j];
-                for (int k = 0; k < j; k++) {
-                    sum -= cov[i * m + k] * cov[j * m + k];
-                }
-                if (i == j) {
-                    if (!(sum > 0)) {
-                        return Double.NaN;
+                    int rj = j * SHARED;
+                    double sum = cov[i * m + j];
+                    for (long common = bi & bandsOf[j]; common != 0; common &= common - 1) {
+                        int q = Long.numberOfTrailingZeros(common);
+                        sum += g[ri + q] * g[rj + q];
                     }
-                    cov[i * m + i] = Math.sqrt(sum);
-                } else {
-                    cov[i * m + j] = sum / cov[j * m + j];
+                    sum += g[ri + ebv] * g[rj + ebv];
+                    sum += g[ri + feh] * g[rj + feh];
+                    cov[i * m + j] = sum;
+                }
+            }
+        } else {
+            for (long bits = sharedSources; bits != 0; bits &= bits - 1) {
+                int q = Long.numberOfTrailingZeros(bits);
+                for (int i = 0; i < m; i++) {
+                    double gi = g[i * SHARED + q];
+                    int row = i * m;
+                    for (int j = 0; j <= i; j++) {
+                        cov[row + j] += gi * g[j * SHARED + q];
+                    }
                 }
             }
         }
+        // Cholesky C = L Lᵀ (L in the lower triangle) row by row, each row's forward substitution for a (in resid) and
+        // b (in ones) as soon as the row is known: the same operations in the same order as factorising first
         double aa = 0;
         double ab = 0;
         double bb = 0;
-        for (int i = 0; i < m; i++) { // forward substitution for a (in resid) and b (in ones)
+        for (int i = 0; i < m; i++) {
+            int ri = i * m;
+            for (int j = 0; j < i; j++) {
+                int rj = j * m;
+                double sum = cov[ri + j];
+                for (int k = 0; k < j; k++) {
+                    sum -= cov[ri + k] * cov[rj + k];
+                }
+                cov[ri + j] = sum / cov[rj + j];
+            }
+            double sum = cov[ri + i];
             double sa = tEst[i] - mean;
             double sb = 1;
             for (int k = 0; k < i; k++) {
-                sa -= cov[i * m + k] * resid[k];
-                sb -= cov[i * m + k] * ones[k];
+                double lik = cov[ri + k];
+                sum -= lik * lik;
+                sa -= lik * resid[k];
+                sb -= lik * ones[k];
             }
-            resid[i] = sa / cov[i * m + i];
-            ones[i] = sb / cov[i * m + i];
-            aa += resid[i] * resid[i];
-            ab += resid[i] * ones[i];
-            bb += ones[i] * ones[i];
+            if (!(sum > 0)) {
+                return Double.NaN;
+            }
+            double lii = Math.sqrt(sum);
+            cov[ri + i] = lii;
+            double ai = sa / lii;
+            double bi = sb / lii;
+            resid[i] = ai;
+            ones[i] = bi;
+            aa += ai * ai;
+            ab += ai * bi;
+            bb += bi * bi;
         }
         return Math.max(0, aa - ab * ab / bb);
     }
@@ -202,6 +207,8 @@ final class TeffEstimator {
             Arrays.fill(c, 0); // a Monte Carlo draw (values only) never reads the contributions
         }
         mask = 0;
+        sharedSources = 0;
+        sharedFinite = true;
         n = 0;
         anyColour = anyOut = extrapolated = usesLogg = false;
         tUpper = Double.POSITIVE_INFINITY;
@@ -238,17 +245,22 @@ final class TeffEstimator {
         if (!vo) {
             Arrays.fill(gradBand, 0);
         }
-        Arrays.fill(groupUsed, false);
+        long groupsUsed = 0; // bit g: a form of colour group g is already used (at most 63 relations)
         int ji = Band.J.ordinal();
         int hi = Band.H.ordinal();
         int[] ofRegime = byRegime[regime.ordinal()];
         // a draw needs only the edge bounds of the FGK and giant relations (they decide the regime, TeffBlend);
         // the other regimes' bounds only flag the nominal estimate
         boolean boundsDecideRegime = regime == Regime.FGK_DWARF || regime == Regime.GIANT;
+        // the M-dwarf relations bound only from the red side, the hot one only from the blue side: their other edge is
+        // where another regime takes over, and TeffBlend reads no such bound (the hot edge would cost a power of 10)
+        boolean upperBounds = regime != Regime.HOT;
+        boolean lowerBounds = regime != Regime.M_DWARF;
         for (int kk = 0; kk < ofRegime.length; kk++) {
             int k = ofRegime[kk];
             TeffRelation r = relations[k];
-            if (groupUsed[groupIds[k]]) {
+            long group = 1L << groupIds[k];
+            if ((groupsUsed & group) != 0) {
                 continue; // another form of this colour is already used
             }
             int bi = r.blue().ordinal();
@@ -275,9 +287,13 @@ final class TeffEstimator {
             if (!in && (!vo || boundsDecideRegime)) {
                 double margin = 2 * Math.sqrt(sx2);
                 if (x > r.colourMax() + margin) {
-                    tUpper = Math.min(tUpper, r.teff(r.colourMax(), feh, logg, aux));
+                    if (upperBounds) {
+                        tUpper = Math.min(tUpper, r.teff(r.colourMax(), feh, logg, aux));
+                    }
                 } else if (x < r.colourMin() - margin) {
-                    tLower = Math.max(tLower, r.teff(r.colourMin(), feh, logg, aux));
+                    if (lowerBounds) {
+                        tLower = Math.max(tLower, r.teff(r.colourMin(), feh, logg, aux));
+                    }
                 }
             }
             if (!in && (!allowExtrapolation || r.form() == TeffRelation.Form.MANN2015)) {
@@ -294,32 +310,35 @@ final class TeffEstimator {
             if (!(t >= TEFF_SANE_MIN_K && t <= TEFF_SANE_MAX_K)) {
                 continue;
             }
-            groupUsed[groupIds[k]] = true;
+            groupsUsed |= group;
             double dx = r.dTeffDColourAt(x, feh, logg, aux, tRaw);
             double sr = r.scatterK(t);
             double w = 1 / (dx * dx * sx2 + sr * sr);
             tEst[n] = t;
-            if (!s.valuesOnly) {
-                int t0 = n * MAX_TERMS;
-                int e = t0;
-                termSource[e] = bi;
-                termValue[e++] = dx * sm[bi];
-                termSource[e] = ri;
-                termValue[e++] = -(dx * sm[ri]);
-                termSource[e] = ErrorSource.EBV;
-                termValue[e++] = -(dx * (rBand[bi] - rBand[ri]) * s.sEbv);
+            // the derivatives in [Fe/H] and J−H serve both the covariance terms and the gradient of the mean
+            double dFeh = vo ? 0 : r.dTeffDFeh(x, feh, logg);
+            double da = vo || r.aux() != TeffRelation.Aux.JH ? 0 : r.dTeffDAux(aux);
+            if (!vo) {
+                int row = n * SHARED;
+                double[] g = shared;
+                Arrays.fill(g, row, row + SHARED, 0);
+                g[row + bi] += dx * sm[bi];
+                g[row + ri] += -(dx * sm[ri]);
+                g[row + ErrorSource.EBV] += -(dx * (rBand[bi] - rBand[ri]) * s.sEbv);
+                long bands = 1L << bi | 1L << ri;
                 if (r.aux() == TeffRelation.Aux.JH) {
-                    double da = r.dTeffDAux(aux);
-                    termSource[e] = ji;
-                    termValue[e++] = da * sm[ji];
-                    termSource[e] = hi;
-                    termValue[e++] = -(da * sm[hi]);
-                    termSource[e] = ErrorSource.EBV;
-                    termValue[e++] = -(da * (rBand[ji] - rBand[hi]) * s.sEbv);
+                    g[row + ji] += da * sm[ji];
+                    g[row + hi] += -(da * sm[hi]);
+                    g[row + ErrorSource.EBV] += -(da * (rBand[ji] - rBand[hi]) * s.sEbv);
+                    bands |= 1L << ji | 1L << hi;
                 }
-                termSource[e] = ErrorSource.FEH;
-                termValue[e++] = r.dTeffDFeh(x, feh, logg) * s.sFeh;
-                nTerms[n] = e - t0;
+                g[row + ErrorSource.FEH] += dFeh * s.sFeh;
+                // the other entries of the row are 0
+                sharedFinite &= Double.isFinite(g[row + bi]) & Double.isFinite(g[row + ri])
+                        & Double.isFinite(g[row + ErrorSource.EBV]) & Double.isFinite(g[row + ErrorSource.FEH])
+                        & Double.isFinite(g[row + ji]) & Double.isFinite(g[row + hi]);
+                bandsOf[n] = bands;
+                sharedSources |= bands | 1L << ErrorSource.EBV | 1L << ErrorSource.FEH;
                 ownVar[n] = sr * sr;
             }
             n++;
@@ -335,12 +354,11 @@ final class TeffEstimator {
             gradBand[ri] -= w * dx;
             gEbv -= w * dx * (rBand[bi] - rBand[ri]);
             if (r.aux() == TeffRelation.Aux.JH) {
-                double da = r.dTeffDAux(aux);
                 gradBand[ji] += w * da;
                 gradBand[hi] -= w * da;
                 gEbv -= w * da * (rBand[ji] - rBand[hi]);
             }
-            gFeh += w * r.dTeffDFeh(x, feh, logg);
+            gFeh += w * dFeh;
             gLogg += w * r.dTeffDLogg(x, feh);
             scatterVar += w * w * sr * sr;
             sumWZp += w * r.zeroPointK();

@@ -19,7 +19,7 @@ import org.starderive.physics.StarInput;
 
 /**
  * ns per star of the Monte Carlo percentiles ({@link MonteCarloDeriver#percentiles}) on one thread, over the same
- * 4096 stars as {@link StarDeriverBench}, with the default settings and {@code draws} draws per star. Divide by the
+ * 4096 stars as {@link StarDeriverBench} (its mix fgk), with the default settings and {@code draws} draws per star. Divide by the
  * draws for the cost of one draw. Run with {@code scripts/bench-kernel MonteCarloBench}; not part of the test suite.
  */
 @State(Scope.Thread)
