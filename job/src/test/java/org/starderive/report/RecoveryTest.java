@@ -73,7 +73,9 @@ class RecoveryTest {
         // the radius of an M dwarf without a Mann colour is another estimate, checked apart: at true parallax/error > 10
         // its 68 % interval covers the truth for 0.58-0.78 (a Gaussian's 0.68: common practice) and its median bias stays
         // within 2.5 % (the stars that need it are the ones too faint in V and BP for their radius, i.e. the cooler ones
-        // at a given M_Ks: about +1.3 % on the demo survey, a selection effect the README states); below the distance
+        // at a given M_Ks: about +1.3 % on the demo survey, a selection effect the README states; the synthetic M dwarfs
+        // are built on the same Teff-radius relation, so this checks the error model and the selection, not the relation,
+        // which TeffFromRadiusTest checks against well-measured stars); below the distance
         // minimum there is no distance at all (no median error), and such stars are a large share
         String fromRadius = "(flags & " + org.starderive.physics.QualityFlag.TEFF_FROM_RADIUS.mask() + ") <> 0";
         String disagrees = "(flags & " + org.starderive.physics.QualityFlag.TEFF_COLOURS_DISAGREE.mask() + ") <> 0";

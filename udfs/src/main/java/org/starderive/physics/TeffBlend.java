@@ -126,11 +126,14 @@ final class TeffBlend {
         if (!RadiusMann2015.inRange(mKs)) {
             return false;
         }
+        // the radius as the luminosity step takes it (its [Fe/H] form for any measured [Fe/H]); the Teff-radius
+        // relation depends on [Fe/H] five times as steeply, so its [Fe/H] form only inside its calibrated range
         double fehForm = s.fehMeasured ? s.feh : Double.NaN;
+        double fehT = TeffRadiusMann2015.fehInRange(fehForm) ? fehForm : Double.NaN;
         double fracR = RadiusMann2015.scatterFrac(fehForm);
-        double fracT = TeffRadiusMann2015.scatterFrac(fehForm);
+        double fracT = TeffRadiusMann2015.scatterFrac(fehT);
         double lnR = Math.log(RadiusMann2015.radiusRsun(mKs, fehForm)) + s.dz(ErrorSource.RADIUS_REL, fracR);
-        double t = TeffRadiusMann2015.teffK(Math.exp(lnR - s.dz(ErrorSource.TEFF_RADIUS_REL, fracT)), fehForm);
+        double t = TeffRadiusMann2015.teffK(Math.exp(lnR - s.dz(ErrorSource.TEFF_RADIUS_REL, fracT)), fehT);
         if (Double.isNaN(t)) {
             return false;
         }
@@ -149,14 +152,14 @@ final class TeffBlend {
             return true;
         }
         // d ln T = (d ln R_obs − d ln(1 + f [Fe/H]) − ε) / (d ln R / d ln T)
-        double tPerLnR = t / TeffRadiusMann2015.dLnRdLnTeff(t, fehForm);
+        double tPerLnR = t / TeffRadiusMann2015.dLnRdLnTeff(t, fehT);
         double dR = RadiusMann2015.dLnRdMks(mKs, fehForm);
         double[] cKs = s.cKs;
         for (int j = 0; j < NSRC; j++) {
             c[j] = tPerLnR * dR * cKs[j];
             dwM[j] = 0;
         }
-        c[ErrorSource.FEH] += tPerLnR * (RadiusMann2015.dLnRdFeh(fehForm) - TeffRadiusMann2015.dLnRdFeh(fehForm)) * s.sFeh;
+        c[ErrorSource.FEH] += tPerLnR * (RadiusMann2015.dLnRdFeh(fehForm) - TeffRadiusMann2015.dLnRdFeh(fehT)) * s.sFeh;
         c[ErrorSource.RADIUS_REL] = tPerLnR * fracR;
         c[ErrorSource.TEFF_RADIUS_REL] = -tPerLnR * fracT;
         c[ErrorSource.BLEND] = 0;

@@ -8,7 +8,8 @@ package org.starderive.physics;
  *   R/R⊙ = (16.7700 − 54.3210 X + 57.6627 X² − 19.6994 X³) (1 + 0.4565 [Fe/H])          σ = 9.3 %   (with [Fe/H])
  * </pre>
  * calibrated on 2700–4100 K and −0.6 &lt; [Fe/H] &lt; +0.5 (the sample of the paper). The scatter is fractional, in R
- * at a given Teff. The [Fe/H] factor multiplies the whole cubic. Coefficients, form and scatter as in the first
+ * at a given Teff. The [Fe/H] factor multiplies the whole cubic; the job uses the [Fe/H] form only for a measured
+ * [Fe/H] inside −0.6 … +0.5 (the plain form otherwise: at M_Ks 8 the [Fe/H] form moves Teff by ~200 K per dex). Coefficients, form and scatter as in the first
  * author's code release and three independent transcriptions, which agree; the 2016 erratum (ApJ 819, 87) is reported
  * not to change these two rows (one transcription says so; the erratum itself was not read).
  *
@@ -45,6 +46,15 @@ public final class TeffRadiusMann2015 {
     public static final double TEFF_MAX_K = 4100.0;
     /** Upper Teff limit of the inverse, [Fe/H] form (our choice, below its maximum at 4050 K; slope ≈ 1.5). */
     public static final double TEFF_MAX_FEH_K = 3900.0;
+
+    /** [Fe/H] range of the calibration sample (the [Fe/H] form is used only inside it). */
+    public static final double FEH_MIN = -0.6;
+    public static final double FEH_MAX = 0.5;
+
+    /** Whether {@code feh} lies inside {@link #FEH_MIN} … {@link #FEH_MAX} (NaN: no). */
+    public static boolean fehInRange(double feh) {
+        return feh >= FEH_MIN && feh <= FEH_MAX;
+    }
 
     /** R in R⊙ at {@code teffK} (the relation forwards, no range check); {@code feh} NaN selects the plain form. */
     public static double radiusRsun(double teffK, double feh) {
@@ -85,7 +95,7 @@ public final class TeffRadiusMann2015 {
     /**
      * The Teff at which the relation gives {@code radiusRsun}, on its rising branch between {@link #teffMinK} and
      * {@link #teffMaxK}; NaN when the radius lies outside what that branch gives (or is not positive, or [Fe/H]
-     * leaves no positive factor). Bisection to 1e-9 K: deterministic, no allocation.
+     * leaves no positive factor). Bisection, 60 halvings (to double precision): deterministic, no allocation.
      */
     public static double teffK(double radiusRsun, double feh) {
         double lo = teffMinK(feh);
@@ -98,7 +108,7 @@ public final class TeffRadiusMann2015 {
         if (!(radiusRsun >= rLo && radiusRsun <= rHi)) {
             return Double.NaN;
         }
-        // the branch rises: bisection on R(T) − R_obs, 60 halvings of a 1300 K interval (< 1e-14 K)
+        // the branch rises: bisection on R(T) − R_obs, 60 halvings of a ≤ 1300 K interval (double precision)
         for (int i = 0; i < 60; i++) {
             double mid = 0.5 * (lo + hi);
             if (radiusRsun(mid, feh) < radiusRsun) {

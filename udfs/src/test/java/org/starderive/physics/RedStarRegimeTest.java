@@ -77,7 +77,7 @@ class RedStarRegimeTest {
         new MonteCarloDeriver(DeriveSettings.defaults(), 200, 7).percentiles(in, 11, q);
         int teff = java.util.Arrays.asList(MonteCarloDeriver.QUANTITIES).indexOf("teff");
         assertTrue(teff >= 0, "teff is a Monte Carlo quantity");
-        // every draw takes the radius route too: the median is the nominal Teff within a tenth of its error, not a
+        // every draw takes the radius route too: the median is the nominal Teff within 0.15 of its error, not a
         // K dwarf's 4300-5300 K from J−Ks
         StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
         assertEquals(r.teffK, q[teff][1], 0.15 * r.teffErrK, "drawn median");

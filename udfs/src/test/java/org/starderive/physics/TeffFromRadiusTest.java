@@ -120,13 +120,16 @@ class TeffFromRadiusTest {
         // interferometric Teff 3054 +- 79 K, R 0.1542 +- 0.0045 R_sun (Boyajian et al. 2012, ApJ 757, 112; from memory)
         assertEquals(3054, r.teffK, 2 * Math.hypot(r.teffErrK, 79), "Teff " + r.teffK + " +- " + r.teffErrK);
         assertEquals(0.1542, r.radiusRsun, 2 * Math.hypot(r.radiusErrRsun, 0.0045));
-        // the error carries the relation's 13.4 % scatter in R divided by the slope d ln R / d ln T, and the radius's
+        // the error carries the relation's 13.4 % scatter in R divided by the slope d ln R / d ln T, and the radius's:
+        // its own 2.89 % and Ks's 0.033 mag through d ln R / d M_Ks (the parallax's 0.05 mas adds 1e-4 mag: left out)
         double slope = r.teffK / 3500 * PLAIN.derivative().value(r.teffK / 3500) / PLAIN.value(r.teffK / 3500);
-        double expected = r.teffK * Math.hypot(0.134, 0.0289) / slope;
-        assertEquals(expected, r.teffErrK, 0.03 * expected, "Teff error");
+        double dLnRdMks = (-0.3520 + 2 * 0.01680 * mKs) / rK;
+        double lnRObsErr = Math.hypot(0.0289, dLnRdMks * 0.033);
+        double expected = r.teffK * Math.hypot(0.134, lnRObsErr) / slope;
+        assertEquals(expected, r.teffErrK, 0.005 * expected, "Teff error");
         // L's error: ln L = (2 + 4 / slope) ln R_obs - 4 ε / slope: R and Teff are correlated, not added as independent
-        double lnLErr = Math.hypot((2 + 4 / slope) * 0.0289, 4 * 0.134 / slope);
-        assertEquals(lnLErr, r.lumErrLsun / r.lumLsun, 0.03 * lnLErr, "L error");
+        double lnLErr = Math.hypot((2 + 4 / slope) * lnRObsErr, 4 * 0.134 / slope);
+        assertEquals(lnLErr, r.lumErrLsun / r.lumLsun, 0.005 * lnLErr, "L error");
         // the mass still comes from M_Ks (Mann et al. 2019), about 0.12 M_sun (from memory)
         assertEquals(0.122, r.massMsun, 2 * r.massErrMsun + 0.005);
     }
@@ -152,6 +155,23 @@ class TeffFromRadiusTest {
         assertEquals(withColours.teffK, r.teffK, 2 * Math.hypot(r.teffErrK, withColours.teffErrK));
         assertEquals(withColours.radiusRsun, r.radiusRsun, 1e-12, "the radius is M_Ks's either way");
         assertEquals(withColours.massMsun, r.massMsun, 1e-12, "and so is the mass");
+    }
+
+    @Test
+    void outsideItsMetallicityRangeThePlainFormGivesTheTeff() {
+        // Mann et al. 2015 calibrated the [Fe/H] forms on -0.6 < [Fe/H] < +0.5: at [Fe/H] -1.0 the Teff-radius
+        // relation's plain form is used (the radius keeps the M_Ks relation's [Fe/H] form, as the luminosity step has it)
+        StarInput poor = proximaWithoutV().feh(-1.0, 0.1);
+        StarResult r = deriver.derive(poor, new StarResult());
+        double mKs = 4.384 + 5 * Math.log10(768.07 / 100);
+        double rK = (1.9305 - 0.3466 * mKs + 0.01647 * mKs * mKs) * (1 + 0.04458 * -1.0);
+        assertTrue(TEFF_FROM_RADIUS.isSet(r.flags), "flags " + QualityFlag.names(r.flags));
+        assertEquals(referenceInverse(rK, Double.NaN, 2800, 4100), r.teffK, 1e-5);
+        assertEquals(rK, r.radiusRsun, 1e-9 * rK);
+        // inside the range the [Fe/H] form: at -0.5 its Teff differs from the plain form's at the same radius
+        StarResult in = deriver.derive(proximaWithoutV().feh(-0.5, 0.1), new StarResult());
+        double rIn = (1.9305 - 0.3466 * mKs + 0.01647 * mKs * mKs) * (1 + 0.04458 * -0.5);
+        assertEquals(referenceInverse(rIn, -0.5, 2850, 3900), in.teffK, 1e-5);
     }
 
     @Test
