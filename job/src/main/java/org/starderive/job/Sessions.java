@@ -21,6 +21,17 @@ public final class Sessions {
     static final String SHOW_CONSOLE_PROGRESS = "spark.ui.showConsoleProgress";
     /** Time zone of Spark SQL timestamps: UTC whatever the machine's zone, so that runs agree across hosts. */
     static final String SESSION_TIME_ZONE = "spark.sql.session.timeZone";
+    /**
+     * Largest generated method (bytes of bytecode) Spark runs in whole-stage code generation; above it Spark runs that
+     * part of the plan without (its operators one by one, their expressions still generated, in smaller methods).
+     * HotSpot does not JIT-compile a method above 8000 bytes (-XX:+DontCompileHugeMethods, the default), and Spark's
+     * own documentation of this setting recommends 8000 on HotSpot (its default, 65535, is the JVM's hard limit). The
+     * derive stage (scan, input struct, the UDF, ~60 stored columns with their casts, the sort of partitionBy) makes
+     * one such method: it ran interpreted, ~9 core-µs per star, more than all the physics (profile at 2·10⁶ stars,
+     * docs/benchmarks.md).
+     */
+    static final String CODEGEN_HUGE_METHOD_LIMIT = "spark.sql.codegen.hugeMethodLimit";
+    static final String HOTSPOT_HUGE_METHOD_LIMIT = "8000";
 
     /** Work to do with a session and the run's progress display. */
     public interface Work {
@@ -45,6 +56,7 @@ public final class Sessions {
         Map<String, String> c = new LinkedHashMap<>();
         c.put(SHOW_CONSOLE_PROGRESS, Boolean.toString(verbose));
         c.put(SESSION_TIME_ZONE, "UTC");
+        c.put(CODEGEN_HUGE_METHOD_LIMIT, HOTSPOT_HUGE_METHOD_LIMIT);
         return c;
     }
 
@@ -80,7 +92,9 @@ public final class Sessions {
             // a session of the JVM's (tests, notebooks): its static settings cannot change (Spark warns if asked to),
             // only the runtime SQL ones are set
             spark = SparkSession.active();
-            spark.conf().set(SESSION_TIME_ZONE, sessionConf(opts.verbose).get(SESSION_TIME_ZONE));
+            Map<String, String> conf = sessionConf(opts.verbose);
+            spark.conf().set(SESSION_TIME_ZONE, conf.get(SESSION_TIME_ZONE));
+            spark.conf().set(CODEGEN_HUGE_METHOD_LIMIT, conf.get(CODEGEN_HUGE_METHOD_LIMIT));
         } else {
             SparkSession.Builder b = SparkSession.builder().appName("starderive " + command);
             if (opts.master != null) {

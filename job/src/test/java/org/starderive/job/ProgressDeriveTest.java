@@ -184,4 +184,21 @@ class ProgressDeriveTest {
         assertEquals("false", Sessions.sessionConf(false).get("spark.ui.showConsoleProgress"));
         assertEquals("true", Sessions.sessionConf(true).get("spark.ui.showConsoleProgress"));
     }
+
+    @Test
+    void generatedMethodsAboveHotSpotsCompileLimitAreNotRunInWholeStageCodegen() {
+        // HotSpot leaves a method above 8000 bytes of bytecode to the interpreter (-XX:+DontCompileHugeMethods, its
+        // default; the JVM's HugeMethodLimit); Spark's documentation of spark.sql.codegen.hugeMethodLimit recommends
+        // 8000 on HotSpot. Every session the command line builds, and a session that already ran (this one: tests,
+        // notebooks), runs with it
+        assertEquals("8000", Sessions.sessionConf(false).get("spark.sql.codegen.hugeMethodLimit"));
+        spark.conf().unset("spark.sql.codegen.hugeMethodLimit");
+        String[] seen = new String[1];
+        Sessions.withSession(new Sessions.Options(null, false, true), "test",
+                (s, progress) -> {
+                    seen[0] = s.conf().get("spark.sql.codegen.hugeMethodLimit");
+                    return 0;
+                });
+        assertEquals("8000", seen[0]);
+    }
 }
