@@ -156,7 +156,7 @@ public final class MonteCarloDeriver {
             // distance
             double dist = !haveDistribution ? Double.NaN
                     : (on & (1L << ErrorSource.MU)) != 0 ? drawDistance(posterior, p, sp, rng, g) : b.distPc;
-            StarResult r = deriver.deriveDraw(in, drawOut, dist, offsets, z, b.lumClass, b.loggCgs);
+            StarResult r = deriver.deriveDraw(in, drawOut, dist, offsets, z, b.lumClass, b.loggCgs, b.teffRoute);
             add(0, r.distPc);
             add(1, r.teffK);
             add(2, r.lumLsun);

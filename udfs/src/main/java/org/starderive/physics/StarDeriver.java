@@ -110,6 +110,16 @@ public final class StarDeriver {
      */
     StarResult deriveDraw(StarInput in, StarResult out, double distPc, double[] teffOffsetK, double[] z,
                           LuminosityClass cls, double logg) {
+        return deriveDraw(in, out, distPc, teffOffsetK, z, cls, logg, -1);
+    }
+
+    /**
+     * {@link #deriveDraw(StarInput, StarResult, double, double[], double[], LuminosityClass, double)} keeping the
+     * nominal star's Teff route {@code teffRoute} ({@link StarResult#teffRoute}; −1: decided by the draw's colours).
+     */
+    StarResult deriveDraw(StarInput in, StarResult out, double distPc, double[] teffOffsetK, double[] z,
+                          LuminosityClass cls, double logg, int teffRoute) {
+        teff.drawRoute = teffRoute;
         drawDistPc = distPc;
         teff.drawTeffOffsetK = teffOffsetK;
         s.drawZ = z;
@@ -119,6 +129,7 @@ public final class StarDeriver {
         try {
             return derive(in, out);
         } finally {
+            teff.drawRoute = -1;
             drawDistPc = Double.NaN;
             teff.drawTeffOffsetK = null;
             s.drawZ = null;
@@ -235,6 +246,7 @@ public final class StarDeriver {
         out.teffRelations = Double.isNaN(out.teffK) ? 0 : teff.relationMask;
         out.teffChi2 = teff.count >= 2 ? teff.chi2() : Double.NaN;
         out.flags = flags;
+        out.teffRoute = Double.isNaN(out.teffK) ? -1 : teff.route;
         sanitize(out);
         return out;
     }

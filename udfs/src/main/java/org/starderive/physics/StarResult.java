@@ -20,6 +20,8 @@ public final class StarResult {
     }
 
     public long flags;
+    /** The Teff route of the derivation (TeffBlend ROUTE_ bits), for Monte Carlo draws to keep; not an output. */
+    int teffRoute;
     public DistanceMethod distMethod;
     public double parallaxCorrMas;
     public double distPc;

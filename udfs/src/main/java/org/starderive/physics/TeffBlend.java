@@ -25,6 +25,22 @@ final class TeffBlend {
     private boolean regimeEstimatesFresh;
     /** Per-relation Teff offsets of a Monte Carlo draw (null: none). */
     double[] drawTeffOffsetK;
+    /** Route bits ({@link #route}): redder than every FGK (or giant) relation by more than 2σ of a colour. */
+    static final int ROUTE_REDDER = 1;
+    /** Route bit: bluer than every FGK (or giant) relation by more than 2σ of a colour. */
+    static final int ROUTE_BLUER = 2;
+    /** Route bit: the Teff came from the M_Ks radius ({@link #fromRadius}). */
+    static final int ROUTE_RADIUS = 4;
+    /**
+     * The route of the last blend: which regimes the colours' edges left in play and whether the Teff came from the
+     * radius (ROUTE_ bits). A Monte Carlo draw keeps the nominal star's route ({@link #drawRoute}), as it keeps its
+     * class: a colour drawn across an edge's 2σ margin would otherwise switch a draw between an FGK colour's Teff and
+     * the radius route (a K dwarf's 4300–5300 K against an M dwarf's 3000 K), and a Mann colour drawn out of its range
+     * would take the radius route without that relation's scatter. A draw that cannot follow the route has no Teff.
+     */
+    int route;
+    /** In a Monte Carlo draw, the nominal star's {@link #route}; −1 (outside draws): decided by the colours. */
+    int drawRoute = -1;
 
     // the blended estimate
     double mean;
@@ -187,12 +203,13 @@ final class TeffBlend {
         // than M_BLEND_LO_K, puts the star where only the M-dwarf regime holds: the other colours' FGK or giant
         // estimate would be a relation used outside its regime (a late M dwarf without V or BP otherwise gets
         // 4300-5300 K from J-Ks); with no M-dwarf estimate the star gets no Teff (COLOUR_OUT_OF_RANGE)
-        boolean redderThanMain = f.tUpper <= Regime.M_BLEND_LO_K;
+        boolean redderThanMain = drawRoute >= 0 ? (drawRoute & ROUTE_REDDER) != 0 : f.tUpper <= Regime.M_BLEND_LO_K;
         // the same on the blue side: a colour beyond the blue edge of the FGK (or giant) relations by more than twice
         // its error, at an edge hotter than HOT_BLEND_HI_K, puts the star where only the hot regime holds. Without
         // this, allow_extrapolation let a B star whose Flower Teff fails the sanity cap (B-V < -0.34 gives > 50 kK)
         // take the C10 B-V relation extrapolated from its edge at 0.18 (12-16 kK at B-V -0.35...-0.5)
-        boolean bluerThanMain = f.tLower >= Regime.HOT_BLEND_HI_K;
+        boolean bluerThanMain = drawRoute >= 0 ? (drawRoute & ROUTE_BLUER) != 0 : f.tLower >= Regime.HOT_BLEND_HI_K;
+        route = (redderThanMain ? ROUTE_REDDER : 0) | (bluerThanMain ? ROUTE_BLUER : 0);
         double wf = f.n > 0 && !redderThanMain && !bluerThanMain ? 1 - wm - wh : 0;
         if (wf < 0) {
             wf = 0;
@@ -206,7 +223,9 @@ final class TeffBlend {
         double lower = Math.max(f.tLower, h.tLower);
         fromRadius = false;
         if (!(sum > 0)) {
-            if (withM && redderThanMain && fromRadius(upper, lower)) {
+            boolean radiusAllowed = drawRoute < 0 || (drawRoute & ROUTE_RADIUS) != 0;
+            if (withM && redderThanMain && radiusAllowed && fromRadius(upper, lower)) {
+                route |= ROUTE_RADIUS;
                 return;
             }
             mean = err = Double.NaN;

@@ -89,6 +89,29 @@ class RedStarRegimeTest {
     }
 
     @Test
+    void monteCarloDrawsKeepTheNominalRouteNearAnEdgesMargin() {
+        // G−Ks 2.832: beyond the C21 dwarf red edge (2.80) by 1.6σ of the colour (σ ≈ 0.020: G 0.003, Ks 0.02), short
+        // of the 2σ that would say "cooler than every FGK relation": the nominal Teff is the K dwarf's from J−Ks.
+        // About a third of the draws put G−Ks beyond the margin; were each draw to judge the route by its own colours,
+        // those would take the M_Ks radius route (~3000-3300 K) and pull the 16th percentile 1000 K down. Draws keep
+        // the nominal route as they keep the class (common practice: a Monte Carlo draw perturbs the measurements,
+        // not the choice of model), so the drawn distribution stays around the nominal Teff
+        StarInput in = noBlueBands(2.832, 0.70);
+        StarResult r = new StarDeriver(DeriveSettings.defaults()).derive(in, new StarResult());
+        assertEquals(Regime.FGK_DWARF, r.regime, "flags " + QualityFlag.names(r.flags));
+        assertFalse(r.has(QualityFlag.TEFF_FROM_RADIUS));
+        assertTrue(r.teffK > 4100, "a K dwarf's Teff from J−Ks, got " + r.teffK);
+        double[][] q = new double[MonteCarloDeriver.NQ][3];
+        new MonteCarloDeriver(DeriveSettings.defaults(), 400, 3).percentiles(in, 5, q);
+        int teff = java.util.Arrays.asList(MonteCarloDeriver.QUANTITIES).indexOf("teff");
+        assertEquals(r.teffK, q[teff][1], 0.2 * r.teffErrK, "drawn median");
+        assertTrue(q[teff][0] > r.teffK - 2 * r.teffErrK, "16th percentile " + q[teff][0] + " against " + r.teffK
+                + " ± " + r.teffErrK + ": draws took another route");
+        // the half-width of the drawn 68 % interval is the first-order error (one relation, no route switch)
+        assertEquals(r.teffErrK, (q[teff][2] - q[teff][0]) / 2, 0.15 * r.teffErrK, "drawn half-width");
+    }
+
+    @Test
     void anMDwarfWithVStillGetsItsMannTemperature() {
         // V−J 4.413 (Mann et al. 2015 check value 3228 K); G−Ks 3.98, beyond the C21 dwarf edge: the M-dwarf
         // regime takes the star, and the FGK estimate (here from J−Ks) is not blended in
