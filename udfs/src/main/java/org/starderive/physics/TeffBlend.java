@@ -102,7 +102,11 @@ final class TeffBlend {
     void estimate(LuminosityClass cls, double logg, double sLogg) {
         double[] off = drawTeffOffsetK;
         TeffEstimator f = estMain;
-        if (cls == LuminosityClass.EVOLVED) {
+        if (drawRoute >= 0 && (drawRoute & (ROUTE_REDDER | ROUTE_BLUER)) != 0) {
+            // a draw of a star whose route puts it beyond the edge of every FGK (or giant) relation gives those
+            // relations no weight whatever its colours (blend), and a draw reads nothing else of them: not evaluated
+            f.clear();
+        } else if (cls == LuminosityClass.EVOLVED) {
             f.estimate(Regime.GIANT, logg, sLogg, off, 0);
             if (f.n == 0) {
                 boolean anyColourGiant = f.anyColour;
