@@ -120,6 +120,7 @@ public final class StarDeriver {
     StarResult deriveDraw(StarInput in, StarResult out, double distPc, double[] teffOffsetK, double[] z,
                           LuminosityClass cls, double logg, int teffRoute) {
         teff.drawRoute = teffRoute;
+        s.routeFixed = teffRoute >= 0;
         drawDistPc = distPc;
         teff.drawTeffOffsetK = teffOffsetK;
         s.drawZ = z;
@@ -130,6 +131,7 @@ public final class StarDeriver {
             return derive(in, out);
         } finally {
             teff.drawRoute = -1;
+            s.routeFixed = false;
             drawDistPc = Double.NaN;
             teff.drawTeffOffsetK = null;
             s.drawZ = null;

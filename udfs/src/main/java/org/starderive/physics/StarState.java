@@ -24,6 +24,8 @@ final class StarState {
     boolean valuesOnly;
     /** Standard normal deviates per {@link ErrorSource} in a Monte Carlo draw (null: not a draw). */
     double[] drawZ;
+    /** A Monte Carlo draw that keeps the nominal star's Teff route (the edge bounds decide nothing in it). */
+    boolean routeFixed;
 
     /** Distance modulus and its error (NaN without a distance). */
     double mu;

@@ -249,9 +249,9 @@ final class TeffEstimator {
         int ji = Band.J.ordinal();
         int hi = Band.H.ordinal();
         int[] ofRegime = byRegime[regime.ordinal()];
-        // a draw needs only the edge bounds of the FGK and giant relations (they decide the regime, TeffBlend);
-        // the other regimes' bounds only flag the nominal estimate
-        boolean boundsDecideRegime = regime == Regime.FGK_DWARF || regime == Regime.GIANT;
+        // a draw needs only the edge bounds of the FGK and giant relations (they decide the regime, TeffBlend), and
+        // not those where it keeps the nominal star's route; the other regimes' bounds only flag the nominal estimate
+        boolean boundsDecideRegime = (regime == Regime.FGK_DWARF || regime == Regime.GIANT) && !s.routeFixed;
         // the M-dwarf relations bound only from the red side, the hot one only from the blue side: their other edge is
         // where another regime takes over, and TeffBlend reads no such bound (the hot edge would cost a power of 10)
         boolean upperBounds = regime != Regime.HOT;
