@@ -19,7 +19,8 @@ import org.starderive.physics.StarInput;
 
 /**
  * ns per star of the Monte Carlo percentiles ({@link MonteCarloDeriver#percentiles}) on one thread, over the same
- * 4096 stars as {@link StarDeriverBench} (its mix fgk), with the default settings and {@code draws} draws per star. Divide by the
+ * 4096 stars as {@link StarDeriverBench} (its mixes: {@code fgk}, the stars of every earlier measurement, and the
+ * survey-like {@code main_sequence}), with the default settings and {@code draws} draws per star. Divide by the
  * draws for the cost of one draw. Run with {@code scripts/bench-kernel MonteCarloBench}; not part of the test suite.
  */
 @State(Scope.Thread)
@@ -32,6 +33,9 @@ public class MonteCarloBench {
     @Param({"128"})
     public int draws;
 
+    @Param({"fgk", "main_sequence"})
+    public String mix;
+
     private MonteCarloDeriver mc;
     private StarInput[] stars;
     private final double[][] out = new double[MonteCarloDeriver.NQ][3];
@@ -40,7 +44,7 @@ public class MonteCarloBench {
     @Setup(Level.Trial)
     public void setup() {
         mc = new MonteCarloDeriver(DeriveSettings.builder().build(), draws, 1L);
-        stars = StarDeriverBench.stars();
+        stars = StarDeriverBench.stars(mix);
     }
 
     @Benchmark
