@@ -119,8 +119,7 @@ public final class StarDeriver {
      */
     StarResult deriveDraw(StarInput in, StarResult out, double distPc, double[] teffOffsetK, double[] z,
                           LuminosityClass cls, double logg, int teffRoute) {
-        teff.drawRoute = teffRoute;
-        s.routeFixed = teffRoute >= 0;
+        s.drawRoute = teffRoute;
         drawDistPc = distPc;
         teff.drawTeffOffsetK = teffOffsetK;
         s.drawZ = z;
@@ -130,8 +129,7 @@ public final class StarDeriver {
         try {
             return derive(in, out);
         } finally {
-            teff.drawRoute = -1;
-            s.routeFixed = false;
+            s.drawRoute = -1;
             drawDistPc = Double.NaN;
             teff.drawTeffOffsetK = null;
             s.drawZ = null;

@@ -24,8 +24,11 @@ final class StarState {
     boolean valuesOnly;
     /** Standard normal deviates per {@link ErrorSource} in a Monte Carlo draw (null: not a draw). */
     double[] drawZ;
-    /** A Monte Carlo draw that keeps the nominal star's Teff route (the edge bounds decide nothing in it). */
-    boolean routeFixed;
+    /**
+     * In a Monte Carlo draw, the nominal star's Teff route (TeffBlend ROUTE_ bits), which the draw keeps (its edge
+     * bounds then decide nothing); −1 outside draws: the route is decided by the colours.
+     */
+    int drawRoute = -1;
 
     /** Distance modulus and its error (NaN without a distance). */
     double mu;

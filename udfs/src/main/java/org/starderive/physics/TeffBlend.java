@@ -33,14 +33,13 @@ final class TeffBlend {
     static final int ROUTE_RADIUS = 4;
     /**
      * The route of the last blend: which regimes the colours' edges left in play and whether the Teff came from the
-     * radius (ROUTE_ bits). A Monte Carlo draw keeps the nominal star's route ({@link #drawRoute}), as it keeps its
-     * class: a colour drawn across an edge's 2σ margin would otherwise switch a draw between an FGK colour's Teff and
-     * the radius route (a K dwarf's 4300–5300 K against an M dwarf's 3000 K), and a Mann colour drawn out of its range
-     * would take the radius route without that relation's scatter. A draw that cannot follow the route has no Teff.
+     * radius (ROUTE_ bits). A Monte Carlo draw keeps the nominal star's route ({@link StarState#drawRoute}), as it
+     * keeps its class: a colour drawn across an edge's 2σ margin would otherwise switch a draw between an FGK
+     * colour's Teff and the radius route (a K dwarf's 4300–5300 K against an M dwarf's 3000 K), and a Mann colour
+     * drawn out of its range would take the radius route without that relation's scatter. A draw that cannot follow
+     * the route has no Teff.
      */
     int route;
-    /** In a Monte Carlo draw, the nominal star's {@link #route}; −1 (outside draws): decided by the colours. */
-    int drawRoute = -1;
 
     // the blended estimate
     double mean;
@@ -101,6 +100,7 @@ final class TeffBlend {
      */
     void estimate(LuminosityClass cls, double logg, double sLogg) {
         double[] off = drawTeffOffsetK;
+        int drawRoute = s.drawRoute;
         TeffEstimator f = estMain;
         if (drawRoute >= 0 && (drawRoute & (ROUTE_REDDER | ROUTE_BLUER)) != 0) {
             // a draw of a star whose route puts it beyond the edge of every FGK (or giant) relation gives those
@@ -207,6 +207,7 @@ final class TeffBlend {
         // than M_BLEND_LO_K, puts the star where only the M-dwarf regime holds: the other colours' FGK or giant
         // estimate would be a relation used outside its regime (a late M dwarf without V or BP otherwise gets
         // 4300-5300 K from J-Ks); with no M-dwarf estimate the star gets no Teff (COLOUR_OUT_OF_RANGE)
+        int drawRoute = s.drawRoute;
         boolean redderThanMain = drawRoute >= 0 ? (drawRoute & ROUTE_REDDER) != 0 : f.tUpper <= Regime.M_BLEND_LO_K;
         // the same on the blue side: a colour beyond the blue edge of the FGK (or giant) relations by more than twice
         // its error, at an edge hotter than HOT_BLEND_HI_K, puts the star where only the hot regime holds. Without

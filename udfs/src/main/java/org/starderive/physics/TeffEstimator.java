@@ -251,7 +251,7 @@ final class TeffEstimator {
         int[] ofRegime = byRegime[regime.ordinal()];
         // a draw needs only the edge bounds of the FGK and giant relations (they decide the regime, TeffBlend), and
         // not those where it keeps the nominal star's route; the other regimes' bounds only flag the nominal estimate
-        boolean boundsDecideRegime = (regime == Regime.FGK_DWARF || regime == Regime.GIANT) && !s.routeFixed;
+        boolean boundsDecideRegime = (regime == Regime.FGK_DWARF || regime == Regime.GIANT) && s.drawRoute < 0;
         // the M-dwarf relations bound only from the red side, the hot one only from the blue side: their other edge is
         // where another regime takes over, and TeffBlend reads no such bound (the hot edge would cost a power of 10)
         boolean upperBounds = regime != Regime.HOT;
