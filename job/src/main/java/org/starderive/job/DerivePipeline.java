@@ -8,7 +8,6 @@ import static org.apache.spark.sql.functions.count;
 import static org.apache.spark.sql.functions.lit;
 import static org.apache.spark.sql.functions.not;
 import static org.apache.spark.sql.functions.row_number;
-import static org.apache.spark.sql.functions.sum;
 import static org.apache.spark.sql.functions.when;
 
 import java.util.ArrayList;
@@ -165,40 +164,34 @@ public final class DerivePipeline {
                 .withColumn(DUP_COL, count(lit(1)).over(byId).gt(1).and(not(missing)));
     }
 
-    /** What one pass over a single table's ids found: its census and how many (non-missing) ids occur more than once. */
+    /** What the scan of a single table's ids found: its census and how many (non-missing) ids occur more than once. */
     public static final class IdScan {
         public final RowCensus census;
         public final long repeatedIds;
-        private final Dataset<Row> counts;
+        /** The repeated ids, one column {@link IdScanner#DUP_ID_COL}; null when there are none. */
+        private final Dataset<Row> dupIds;
 
-        IdScan(RowCensus census, long repeatedIds, Dataset<Row> counts) {
+        IdScan(RowCensus census, long repeatedIds, Dataset<Row> dupIds) {
             this.census = census;
             this.repeatedIds = repeatedIds;
-            this.counts = counts;
+            this.dupIds = dupIds;
+        }
+
+        Dataset<Row> dupIds() {
+            return dupIds;
         }
     }
 
     /**
-     * One pass over the id column of a single table (Parquet reads just that column): copies per id, then in the
-     * same job the table's census (rows and id-hash sums, see {@link RowCensus}) and the number of repeated ids.
-     * This replaces two passes (census, then duplicate count) — the repeated ids themselves are only gathered, by a
-     * second pass, when there are any.
+     * The census of a single table (rows and id-hash sums, see {@link RowCensus}) and its repeated ids: one read of the
+     * id column (Parquet reads just that column) when no id repeats, a second read of the candidates' rows otherwise
+     * ({@link IdScanner}).
      */
     public IdScan scanIds(Dataset<Row> d, String table) {
         if (!d.schema().getFieldIndex(idColumn).isDefined()) {
             throw missing(table, idColumn, "the star id; set columns.star_id in the config");
         }
-        Dataset<Row> counts = d.groupBy(col(idColumn)).agg(count(lit(1)).as("n"));
-        Column n = col("n");
-        Column id = col(idColumn);
-        DataType idType = d.schema().apply(idColumn).dataType();
-        Column present = not(idMissing(id, idType));
-        Column key = RowCensus.key(id, idType);
-        Row r = counts.agg(coalesce(sum(n), lit(0L)),
-                coalesce(sum(n.multiply(RowCensus.lo(key))), lit(0L)),
-                coalesce(sum(n.multiply(RowCensus.hi(key))), lit(0L)),
-                coalesce(sum(when(n.gt(1).and(present), 1L).otherwise(0L)), lit(0L))).first();
-        return new IdScan(new RowCensus(r.getLong(0), r.getLong(1), r.getLong(2)), r.getLong(3), counts);
+        return IdScanner.scan(d, idColumn);
     }
 
     /**
@@ -209,18 +202,16 @@ public final class DerivePipeline {
         if (scan.repeatedIds == 0) {
             return d.withColumn(DUP_COL, lit(false));
         }
-        Column present = not(idMissing(col(idColumn), scan.counts.schema().apply(idColumn).dataType()));
-        Dataset<Row> dups = scan.counts.filter(col("n").gt(1).and(present))
-                .select(col(idColumn).as("__dup_id"), lit(true).as(DUP_COL));
+        Dataset<Row> dups = scan.dupIds.withColumn(DUP_COL, lit(true));
         Dataset<Row> small;
-        if (scan.repeatedIds <= 1_000_000) {
+        if (scan.repeatedIds <= IdScanner.MAX_BROADCAST_IDS) {
             List<Row> ids = dups.collectAsList();
             small = broadcast(d.sparkSession().createDataFrame(ids, dups.schema()));
         } else {
             small = dups;
         }
-        Dataset<Row> j = d.join(small, d.col(idColumn).equalTo(small.col("__dup_id")), "left");
-        return j.drop("__dup_id").withColumn(DUP_COL, coalesce(col(DUP_COL), lit(false)));
+        Dataset<Row> j = d.join(small, d.col(idColumn).equalTo(small.col(IdScanner.DUP_ID_COL)), "left");
+        return j.drop(IdScanner.DUP_ID_COL).withColumn(DUP_COL, coalesce(col(DUP_COL), lit(false)));
     }
 
     /** The canonical input struct's columns, built from the survey's columns as the config maps them. */
